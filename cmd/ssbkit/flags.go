@@ -1,0 +1,47 @@
+package main
+
+import (
+	"fmt"
+	"strings"
+
+	"github.com/spf13/pflag"
+)
+
+// newFlagSet returns a flag set for one subcommand with the flags every
+// command shares. usage is the synopsis line(s); examples is shown after the
+// flag list.
+func newFlagSet(e *env, name, usage, examples string) *pflag.FlagSet {
+	fs := pflag.NewFlagSet(name, pflag.ContinueOnError)
+	fs.SetOutput(e.stderr)
+	fs.SortFlags = false
+	fs.Usage = func() {
+		w := e.stdout
+		fmt.Fprintf(w, "Usage:\n  %s\n\nFlags:\n", strings.TrimSpace(usage))
+		fs.SetOutput(w)
+		fs.PrintDefaults()
+		fs.SetOutput(e.stderr)
+		if examples != "" {
+			fmt.Fprintf(w, "\n%s\n", strings.TrimRight(examples, "\n"))
+		}
+	}
+	return fs
+}
+
+// parseFlags parses args, mapping pflag's errors to usage errors. Help
+// returns errHelp after printing.
+func parseFlags(fs *pflag.FlagSet, args []string) error {
+	fs.SetOutput(discard{})
+	err := fs.Parse(args)
+	if err == pflag.ErrHelp {
+		fs.Usage()
+		return errHelp
+	}
+	if err != nil {
+		return usagef("%v", err)
+	}
+	return nil
+}
+
+type discard struct{}
+
+func (discard) Write(p []byte) (int, error) { return len(p), nil }

@@ -1,0 +1,7 @@
+package main
+
+import "errors"
+
+func runRx(e *env, args []string) error {
+	return errors.New("not built yet in this version")
+}
