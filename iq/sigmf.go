@@ -1,0 +1,230 @@
+package iq
+
+import (
+	"bytes"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"sort"
+	"strings"
+	"time"
+)
+
+// SigMFVersion is the SigMF specification version written and validated
+// against (SigMF Specification v1.0.0: global core:datatype and
+// core:version required; the captures and annotations arrays required;
+// core:sample_start required in each of their objects).
+const SigMFVersion = "1.0.0"
+
+// maxSigMFMeta caps the metadata file read (annotations can be many, but a
+// metadata file of more than this is not one).
+const maxSigMFMeta = 64 << 20
+
+// sigmfMeta is the JSON shape of a .sigmf-meta file as ssbkit reads it;
+// pointers tell a missing key from a zero value.
+type sigmfMeta struct {
+	Global *struct {
+		Datatype    *string  `json:"core:datatype"`
+		SampleRate  *float64 `json:"core:sample_rate"`
+		Version     *string  `json:"core:version"`
+		Description string   `json:"core:description"`
+		NumChannels *int     `json:"core:num_channels"`
+	} `json:"global"`
+	Captures []struct {
+		SampleStart *int64   `json:"core:sample_start"`
+		Frequency   *float64 `json:"core:frequency"`
+		Datetime    string   `json:"core:datetime"`
+	} `json:"captures"`
+	Annotations []struct {
+		SampleStart   *int64   `json:"core:sample_start"`
+		SampleCount   *int64   `json:"core:sample_count"`
+		FreqLowerEdge *float64 `json:"core:freq_lower_edge"`
+		FreqUpperEdge *float64 `json:"core:freq_upper_edge"`
+		Label         string   `json:"core:label"`
+		Comment       string   `json:"core:comment"`
+	} `json:"annotations"`
+}
+
+// ReadSigMFMeta parses SigMF metadata from r; name is used in errors. It
+// requires the global object with a supported core:datatype; a missing
+// core:sample_rate leaves Rate 0. The centre frequency and date come from
+// the first capture segment. Invalid JSON is reported with its line and
+// column.
+func ReadSigMFMeta(r io.Reader, name string) (Meta, error) {
+	m := Meta{Container: ContainerSigMF, Samples: -1}
+	data, err := io.ReadAll(io.LimitReader(r, maxSigMFMeta+1))
+	if err != nil {
+		return m, fmt.Errorf("%s: %w", name, err)
+	}
+	if len(data) > maxSigMFMeta {
+		return m, formatErr(name, -1, "metadata larger than %d bytes", maxSigMFMeta)
+	}
+	if len(bytes.TrimSpace(data)) == 0 {
+		return m, formatErr(name, -1, "empty metadata file")
+	}
+	var sm sigmfMeta
+	if err := json.Unmarshal(data, &sm); err != nil {
+		return m, jsonError(name, data, err)
+	}
+	if sm.Global == nil {
+		return m, formatErr(name, -1, "no \"global\" object")
+	}
+	g := sm.Global
+	if g.Datatype == nil {
+		return m, formatErr(name, -1, "no global \"core:datatype\"")
+	}
+	dt := Datatype(*g.Datatype)
+	if !dt.Valid() {
+		return m, &UnsupportedError{File: name, What: "SigMF core:datatype " + quote(*g.Datatype) + " (known: cu8, ci8, ci16_le, cf32_le, rf32_le, ri16_le)"}
+	}
+	if g.NumChannels != nil && *g.NumChannels != 1 {
+		return m, &UnsupportedError{File: name, What: fmt.Sprintf("SigMF core:num_channels %d (want 1)", *g.NumChannels)}
+	}
+	m.Datatype = dt
+	m.Real = dt.IsReal()
+	if g.SampleRate != nil {
+		if !(*g.SampleRate > 0) || *g.SampleRate > 1e12 {
+			return m, formatErr(name, -1, "core:sample_rate %g is not a positive rate", *g.SampleRate)
+		}
+		m.Rate = *g.SampleRate
+	}
+	m.Description = g.Description
+	for i, c := range sm.Captures {
+		if c.SampleStart == nil {
+			return m, formatErr(name, -1, "captures[%d] has no \"core:sample_start\"", i)
+		}
+	}
+	if len(sm.Captures) > 0 {
+		c := sm.Captures[0]
+		if c.Frequency != nil {
+			m.Center, m.HasCenter = *c.Frequency, true
+		}
+		if c.Datetime != "" {
+			t, err := time.Parse(time.RFC3339Nano, c.Datetime)
+			if err != nil {
+				return m, formatErr(name, -1, "captures[0] core:datetime %q is not ISO 8601 (want e.g. 2024-05-01T12:00:00Z)", c.Datetime)
+			}
+			m.Datetime = t
+		}
+	}
+	for i, a := range sm.Annotations {
+		if a.SampleStart == nil {
+			return m, formatErr(name, -1, "annotations[%d] has no \"core:sample_start\"", i)
+		}
+		an := Annotation{SampleStart: *a.SampleStart, Label: a.Label, Comment: a.Comment}
+		if a.SampleCount != nil {
+			an.SampleCount = *a.SampleCount
+		}
+		if a.FreqLowerEdge != nil {
+			an.FreqLowerEdge = *a.FreqLowerEdge
+		}
+		if a.FreqUpperEdge != nil {
+			an.FreqUpperEdge = *a.FreqUpperEdge
+		}
+		m.Annotations = append(m.Annotations, an)
+	}
+	return m, nil
+}
+
+// jsonError turns a decoding error into a FormatError that says where.
+func jsonError(name string, data []byte, err error) error {
+	var se *json.SyntaxError
+	var te *json.UnmarshalTypeError
+	switch {
+	case errors.As(err, &se):
+		line, col := lineCol(data, se.Offset)
+		return formatErr(name, -1, "invalid JSON at line %d, column %d: %v", line, col, se)
+	case errors.As(err, &te):
+		line, col := lineCol(data, te.Offset)
+		return formatErr(name, -1, "line %d, column %d: %q should be %v, not a JSON %s", line, col, te.Field, te.Type, te.Value)
+	}
+	return formatErr(name, -1, "invalid JSON: %v", err)
+}
+
+func lineCol(data []byte, off int64) (line, col int) {
+	off = min(max(off, 0), int64(len(data)))
+	before := data[:off]
+	line = 1 + bytes.Count(before, []byte("\n"))
+	col = int(off) - bytes.LastIndexByte(before, '\n')
+	return line, col
+}
+
+// WriteSigMFMeta writes SigMF v1.0.0 metadata for m: the global object
+// (core:datatype, core:sample_rate, core:version, core:description,
+// core:recorder), one capture segment at sample 0 with core:frequency and
+// core:datetime when known, and m's annotations sorted by start as the
+// specification asks. It returns an error if m.Datatype is not supported.
+func WriteSigMFMeta(w io.Writer, m Meta) error {
+	if !m.Datatype.Valid() {
+		return &UnsupportedError{What: "SigMF datatype " + quote(string(m.Datatype))}
+	}
+	type kv struct {
+		k string
+		v any
+	}
+	global := []kv{
+		{"core:datatype", string(m.Datatype)},
+	}
+	if m.Rate > 0 {
+		global = append(global, kv{"core:sample_rate", m.Rate})
+	}
+	global = append(global, kv{"core:version", SigMFVersion})
+	if m.Description != "" {
+		global = append(global, kv{"core:description", m.Description})
+	}
+	global = append(global, kv{"core:recorder", "ssbkit"})
+	capture := []kv{{"core:sample_start", 0}}
+	if m.HasCenter {
+		capture = append(capture, kv{"core:frequency", m.Center})
+	}
+	if !m.Datetime.IsZero() {
+		capture = append(capture, kv{"core:datetime", m.Datetime.UTC().Format("2006-01-02T15:04:05.000Z")})
+	}
+	anns := append([]Annotation(nil), m.Annotations...)
+	sort.SliceStable(anns, func(i, j int) bool { return anns[i].SampleStart < anns[j].SampleStart })
+
+	var b strings.Builder
+	obj := func(indent string, fields []kv) {
+		b.WriteString("{")
+		for i, f := range fields {
+			if i > 0 {
+				b.WriteString(",")
+			}
+			v, _ := json.Marshal(f.v)
+			fmt.Fprintf(&b, "\n%s  %q: %s", indent, f.k, v)
+		}
+		fmt.Fprintf(&b, "\n%s}", indent)
+	}
+	b.WriteString("{\n  \"global\": ")
+	obj("  ", global)
+	b.WriteString(",\n  \"captures\": [\n    ")
+	obj("    ", capture)
+	b.WriteString("\n  ],\n  \"annotations\": [")
+	for i, a := range anns {
+		if i > 0 {
+			b.WriteString(",")
+		}
+		f := []kv{{"core:sample_start", a.SampleStart}}
+		if a.SampleCount > 0 {
+			f = append(f, kv{"core:sample_count", a.SampleCount})
+		}
+		if a.FreqLowerEdge != 0 || a.FreqUpperEdge != 0 {
+			f = append(f, kv{"core:freq_lower_edge", a.FreqLowerEdge}, kv{"core:freq_upper_edge", a.FreqUpperEdge})
+		}
+		if a.Label != "" {
+			f = append(f, kv{"core:label", a.Label})
+		}
+		if a.Comment != "" {
+			f = append(f, kv{"core:comment", a.Comment})
+		}
+		b.WriteString("\n    ")
+		obj("    ", f)
+	}
+	if len(anns) > 0 {
+		b.WriteString("\n  ")
+	}
+	b.WriteString("]\n}\n")
+	_, err := io.WriteString(w, b.String())
+	return err
+}
