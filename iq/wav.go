@@ -160,15 +160,15 @@ func skip(r io.Reader, n int64) error {
 // wavWriter writes two-channel I/Q WAV data: 16-bit PCM (CI16) or 32-bit
 // IEEE float (CF32). The sizes in the header are filled in by Close.
 type wavWriter struct {
-	w        io.WriteSeeker
-	dt       Datatype
-	buf      []byte
-	start    int64 // offset of the RIFF header
-	hdrLen   int64
-	data     int64 // bytes of sample data written
-	err      error
-	closed   bool
-	nonfin   int64
+	w      io.WriteSeeker
+	dt     Datatype
+	buf    []byte
+	start  int64 // offset of the RIFF header
+	hdrLen int64
+	data   int64 // bytes of sample data written
+	err    error
+	closed bool
+	nonfin int64
 }
 
 // maxWAVData is the largest data chunk a RIFF file can describe.
