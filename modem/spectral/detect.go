@@ -1,0 +1,262 @@
+package spectral
+
+import (
+	"math"
+	"slices"
+)
+
+// Kinds of detected signal.
+const (
+	KindUSB     = "usb"
+	KindLSB     = "lsb"
+	KindAM      = "am"
+	KindCarrier = "carrier"
+	KindUnknown = "unknown"
+)
+
+// Signal is one signal found by Detect. Frequencies are offsets from the
+// capture centre in Hz.
+type Signal struct {
+	// OffsetHz is the estimated carrier: the peak for am and carrier; for
+	// usb (lsb) the suppressed carrier AudioLowHz below (above) the steep
+	// low (high) edge; the middle of the occupied band for unknown.
+	OffsetHz float64
+	// LowHz and HighHz are the occupied edges.
+	LowHz, HighHz float64
+	// SNRdB is the signal power over the occupied band, noise removed,
+	// relative to the noise power in the same band.
+	SNRdB float64
+	// Kind is usb, lsb, am, carrier or unknown.
+	Kind string
+}
+
+// DetectOptions tunes Detect. The zero value gives the documented
+// defaults.
+type DetectOptions struct {
+	// ThresholdDB is the level above the noise floor, in the smoothed
+	// spectrum, at which a bin counts as occupied (default 8 dB).
+	ThresholdDB float64
+	// SmoothHz is the width of the moving average applied before
+	// thresholding (default 60 Hz, at least one bin).
+	SmoothHz float64
+	// MergeHz joins occupied runs separated by a gap narrower than this
+	// (default 500 Hz): it keeps an AM carrier with its sidebands and a
+	// voice spectrum whole.
+	MergeHz float64
+	// NarrowHz is the widest group still called a carrier (default 150 Hz).
+	NarrowHz float64
+	// AudioLowHz is the audio low edge assumed for SSB: the suppressed
+	// carrier is placed this far outside the steep edge (default 300 Hz,
+	// the usual low edge of a voice transmitter's passband, common
+	// practice).
+	AudioLowHz float64
+}
+
+func (o DetectOptions) withDefaults() DetectOptions {
+	if o.ThresholdDB == 0 {
+		o.ThresholdDB = 8
+	}
+	if o.SmoothHz == 0 {
+		o.SmoothHz = 60
+	}
+	if o.MergeHz == 0 {
+		o.MergeHz = 500
+	}
+	if o.NarrowHz == 0 {
+		o.NarrowHz = 150
+	}
+	if o.AudioLowHz == 0 {
+		o.AudioLowHz = 300
+	}
+	return o
+}
+
+// smooth returns the moving average of x over w bins (w odd), the ends
+// averaging over the bins present.
+func smooth(x []float64, w int) []float64 {
+	out := make([]float64, len(x))
+	h := w / 2
+	var acc float64
+	cnt := 0
+	// running window [j-h, j+h]
+	for j := 0; j < h && j < len(x); j++ {
+		acc += x[j]
+		cnt++
+	}
+	for j := range x {
+		if k := j + h; k < len(x) {
+			acc += x[k]
+			cnt++
+		}
+		if k := j - h - 1; k >= 0 {
+			acc -= x[k]
+			cnt--
+		}
+		out[j] = acc / float64(cnt)
+	}
+	return out
+}
+
+// smoothBins converts a smoothing width in Hz to an odd bin count.
+func smoothBins(hz, binHz float64) int {
+	w := int(math.Round(hz / binHz))
+	if w < 1 {
+		w = 1
+	}
+	return w | 1
+}
+
+// noiseQuantile is the quantile of the smoothed spectrum taken as the
+// noise floor: a low quantile stays on the noise even when signals cover
+// more than half of the capture.
+const noiseQuantile = 0.3
+
+// NoiseFloor returns the noise density (power per Hz) of a centred PSD:
+// the 30 % quantile of the spectrum smoothed over smoothHz. Averaged
+// spectra are nearly constant on noise, so a low quantile is close to the
+// mean noise density while signals fill the upper quantiles (a robust
+// order statistic, common practice).
+func NoiseFloor(psd []float64, rate, smoothHz float64) float64 {
+	if len(psd) == 0 {
+		return 0
+	}
+	s := smooth(psd, smoothBins(smoothHz, rate/float64(len(psd))))
+	slices.Sort(s)
+	return s[int(noiseQuantile*float64(len(s)-1))]
+}
+
+// Detect finds the signals in a centred power spectral density (as
+// returned by Accumulator.PSD) of a capture at rate Hz. The steps:
+//
+//  1. the noise floor N₀ is NoiseFloor's low quantile of the smoothed PSD;
+//  2. bins of the smoothed PSD above N₀·10^(ThresholdDB/10) are occupied;
+//     runs closer than MergeHz are joined, and each group's edges are
+//     pulled in to the outermost raw bins above the threshold;
+//  3. each group gets a kind from its shape: narrower than NarrowHz is a
+//     carrier; a strong narrow peak (10 dB over the group's median) near
+//     the middle with sidebands on both sides is AM; otherwise the
+//     power centroid tells the sideband — voice energy crowds towards the
+//     carrier, so a centroid in the lower part of the band is USB, in the
+//     upper part LSB, else unknown.
+//
+// Signals come back sorted by frequency.
+func Detect(psd []float64, rate float64, opt DetectOptions) []Signal {
+	n := len(psd)
+	if n < 8 || !(rate > 0) {
+		return nil
+	}
+	opt = opt.withDefaults()
+	bin := rate / float64(n)
+	sw := smoothBins(opt.SmoothHz, bin)
+	sm := smooth(psd, sw)
+	floor := NoiseFloor(psd, rate, opt.SmoothHz)
+	if !(floor > 0) {
+		// an all-zero capture has nothing in it
+		return nil
+	}
+	thr := floor * math.Pow(10, opt.ThresholdDB/10)
+	// runs of occupied bins
+	type run struct{ a, b int }
+	var runs []run
+	for j := 0; j < n; {
+		if sm[j] <= thr {
+			j++
+			continue
+		}
+		k := j
+		for k+1 < n && sm[k+1] > thr {
+			k++
+		}
+		runs = append(runs, run{j, k})
+		j = k + 1
+	}
+	gap := int(math.Ceil(opt.MergeHz / bin))
+	var groups []run
+	for _, r := range runs {
+		if len(groups) > 0 && r.a-groups[len(groups)-1].b-1 < gap {
+			groups[len(groups)-1].b = r.b
+			continue
+		}
+		groups = append(groups, r)
+	}
+	freq := func(j float64) float64 { return (j - float64(n/2)) * bin }
+	var out []Signal
+	for _, g := range groups {
+		// pull the edges in to raw bins above the threshold
+		a, b := g.a, g.b
+		for a < b && psd[a] <= thr {
+			a++
+		}
+		for b > a && psd[b] <= thr {
+			b--
+		}
+		s := Signal{LowHz: freq(float64(a) - 0.5), HighHz: freq(float64(b) + 0.5)}
+		width := s.HighHz - s.LowHz
+		var sig, moment float64
+		peak := a
+		for j := a; j <= b; j++ {
+			e := math.Max(psd[j]-floor, 0) * bin
+			sig += e
+			moment += e * freq(float64(j))
+			if psd[j] > psd[peak] {
+				peak = j
+			}
+		}
+		s.SNRdB = dB(sig) - dB(floor*math.Max(width, bin))
+		peakHz := refinePeak(psd, peak, bin, freq)
+		mid := (s.LowHz + s.HighHz) / 2
+		switch {
+		case width <= opt.NarrowHz:
+			s.Kind, s.OffsetHz = KindCarrier, peakHz
+		case isAM(psd, a, b, peak, peakHz, s, opt):
+			s.Kind, s.OffsetHz = KindAM, peakHz
+		default:
+			c := moment / sig
+			rel := (c - mid) / (width / 2)
+			switch {
+			case rel < -centroidSkew:
+				s.Kind, s.OffsetHz = KindUSB, s.LowHz-opt.AudioLowHz
+			case rel > centroidSkew:
+				s.Kind, s.OffsetHz = KindLSB, s.HighHz+opt.AudioLowHz
+			default:
+				s.Kind, s.OffsetHz = KindUnknown, mid
+			}
+		}
+		out = append(out, s)
+	}
+	return out
+}
+
+// centroidSkew is the fraction of the half width by which the power
+// centroid must sit off the middle to call a sideband.
+const centroidSkew = 0.1
+
+// isAM reports whether the group [a, b] has a carrier-like peak: 10 dB
+// above the group's median, within the middle third, with at least
+// NarrowHz of occupied spectrum on each side.
+func isAM(psd []float64, a, b, peak int, peakHz float64, s Signal, opt DetectOptions) bool {
+	vals := slices.Clone(psd[a : b+1])
+	slices.Sort(vals)
+	med := vals[len(vals)/2]
+	if dB(psd[peak])-dB(med) < 10 {
+		return false
+	}
+	third := (s.HighHz - s.LowHz) / 3
+	if peakHz < s.LowHz+third || peakHz > s.HighHz-third {
+		return false
+	}
+	return peakHz-s.LowHz >= opt.NarrowHz && s.HighHz-peakHz >= opt.NarrowHz
+}
+
+// refinePeak returns the frequency of bin j refined by a parabola through
+// the dB values of j and its neighbours.
+func refinePeak(psd []float64, j int, bin float64, freq func(float64) float64) float64 {
+	f := freq(float64(j))
+	if j > 0 && j < len(psd)-1 {
+		x, y, z := dB(psd[j-1]), dB(psd[j]), dB(psd[j+1])
+		if d := x - 2*y + z; d < 0 {
+			f += 0.5 * (x - z) / d * bin
+		}
+	}
+	return f
+}

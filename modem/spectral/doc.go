@@ -1,0 +1,65 @@
+// Package spectral estimates spectra of complex baseband captures and
+// measures single-sideband and AM transmissions in them.
+//
+// # Welch spectra
+//
+// An Accumulator cuts the stream into segments of n samples x_m[i], a hop
+// apart, tapers each with a window w[i] and averages the periodograms
+// (Welch's method):
+//
+//	P[k] = 1/(M·fs·Σw²) · Σ_m |Σ_i w[i]·x_m[i]·e^{−j2πik/n}|²
+//
+// P is a two-sided power spectral density in (full-scale amplitude)² per
+// Hz: complex white noise with E|x|² = σ² reads σ²/fs in every bin, and
+// ∫P df over a band is the power in that band (the window's equivalent
+// noise bandwidth ENBW = n·Σw²/(Σw)² bins is what makes both true at
+// once; F. J. Harris, Proc. IEEE 66(1), 1978, eq. 11). The scaling is
+// scipy.signal.welch's "density" scaling. A tone of amplitude A centred on
+// bin k reads P[k]·(fs/n)·ENBW = A²: with the FlatTop window that holds to
+// 0.01 dB wherever the tone falls between bins, so tone and carrier levels
+// are read from a flat-top spectrum and band powers from a Hann one.
+// Windows are periodic ("DFT-even") versions of gonum's dsp/window
+// weights; the FFT is gonum's dsp/fourier.
+//
+// A Waterfall keeps, beside the average, a bounded time–frequency picture:
+// rows of summed periodograms that merge pairwise when they reach twice
+// the row limit, so any stream length fits in fixed memory.
+//
+// # Occupied bandwidth
+//
+// Spectrum.OccupiedBandwidth returns the band outside which 0.5 % of the
+// power lies on each side (99 % bandwidth, ITU-R Recommendation SM.328).
+//
+// # Detection
+//
+// Detect finds signals in a PSD: noise floor from a low quantile of the
+// smoothed spectrum, a threshold above it, grouping of occupied bins, and
+// a kind from the spectral shape. For SSB the suppressed carrier is put
+// AudioLowHz (default 300 Hz, the usual low edge of a voice transmitter,
+// common practice) outside the steep edge nearest the voice energy.
+//
+// # Measuring a transmission
+//
+// A Measurer reports, for a carrier at offset c and an audio band
+// [lo, hi]:
+//
+//   - wanted and unwanted sideband power, ∫P over c+[lo, hi] and
+//     c−[hi, lo], and their ratio, the opposite-sideband suppression;
+//   - PEP, the peak of |y|² in the time domain, where y is the capture
+//     isolated around the carrier by a linear-phase band-pass filter
+//     (pass |f−c| ≤ hi+150 Hz, stop from hi+850 Hz): other signals in a
+//     wide capture do not inflate the peak; when that band already covers
+//     the capture no filter is applied. Outputs during the filter's
+//     start and end are ignored;
+//   - the carrier level (flat-top line at c) relative to PEP, in dBc;
+//   - the 99 % occupied bandwidth over c ± 2·hi;
+//   - when two tones hold 80 % of the wanted power and are within 6 dB
+//     of each other, the products at 2f₁−f₂, 2f₂−f₁ (third order) and
+//     3f₁−2f₂, 3f₂−2f₁ (fifth order): the stronger of each pair relative
+//     to one tone (the mean of the two tone powers), dBc, and relative to
+//     PEP. For two equal tones PEP is four times one tone's power, so
+//     the PEP figures are 6.02 dB lower (common practice).
+//
+// A product or carrier below the noise reads as the noise in its bin: the
+// figure is then an upper bound.
+package spectral
