@@ -134,7 +134,10 @@ func NoiseFloor(psd []float64, rate, smoothHz float64) float64 {
 //     pulled in to the outermost raw bins above the threshold;
 //  3. each group gets a kind from its shape: narrower than NarrowHz is a
 //     carrier; a strong narrow peak (10 dB over the group's median) near
-//     the middle with sidebands on both sides is AM; otherwise the
+//     the middle with sidebands on both sides, each beyond ±NarrowHz/2 of
+//     the peak and at least −30 dB of the peak's power, is AM; a peak
+//     holding 90 % of the power is a carrier (wider only by the window's
+//     skirts); otherwise the
 //     power centroid tells the sideband — voice energy crowds towards the
 //     carrier, so a centroid in the lower part of the band is USB, in the
 //     upper part LSB, else unknown.
@@ -205,11 +208,28 @@ func Detect(psd []float64, rate float64, opt DetectOptions) []Signal {
 		s.SNRdB = dB(sig) - dB(floor*math.Max(width, bin))
 		peakHz := refinePeak(psd, peak, bin, freq)
 		mid := (s.LowHz + s.HighHz) / 2
+		// power near the peak (the window's main lobe and skirts) and
+		// on each side beyond it
+		zone := max(4, int(math.Ceil(opt.NarrowHz/2/bin)))
+		var core, left, right float64
+		for j := a; j <= b; j++ {
+			e := math.Max(psd[j]-floor, 0)
+			switch {
+			case j < peak-zone:
+				left += e
+			case j > peak+zone:
+				right += e
+			default:
+				core += e
+			}
+		}
 		switch {
 		case width <= opt.NarrowHz:
 			s.Kind, s.OffsetHz = KindCarrier, peakHz
-		case isAM(psd, a, b, peak, peakHz, s, opt):
+		case isAM(psd, a, b, peak, peakHz, s, opt) && math.Min(left, right) >= sidebandMin*core:
 			s.Kind, s.OffsetHz = KindAM, peakHz
+		case core >= carrierShare*(core+left+right):
+			s.Kind, s.OffsetHz = KindCarrier, peakHz
 		default:
 			c := moment / sig
 			rel := (c - mid) / (width / 2)
@@ -226,6 +246,16 @@ func Detect(psd []float64, rate float64, opt DetectOptions) []Signal {
 	}
 	return out
 }
+
+// An AM signal has at least sidebandMin of its carrier's power on each
+// side (−30 dB: far above a Hann window's leakage beyond four bins, well
+// below the sidebands of speech modulation, common practice); a group
+// whose peak zone holds carrierShare of the power is a carrier with the
+// window's skirts.
+const (
+	sidebandMin  = 1e-3
+	carrierShare = 0.9
+)
 
 // centroidSkew is the fraction of the half width by which the power
 // centroid must sit off the middle to call a sideband.

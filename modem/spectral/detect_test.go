@@ -1,0 +1,91 @@
+package spectral
+
+import (
+	"math"
+	"testing"
+)
+
+// voiceCapture synthesises a capture at rate with a USB voice-like signal
+// (carrier at usb), an LSB one (at lsb) and an AM one (at am), plus white
+// noise: voice is band-limited noise with a speech-like long-term
+// spectrum and a syllabic envelope. Each SSB signal is built as an
+// analytic signal directly in the frequency domain, so its opposite
+// sideband is absent.
+func voiceCapture(n int, rate, usb, lsb, am float64) []complex64 {
+	u := bandNoise(n, rate, 0.02, 31, func(f float64) float64 { return voiceShape(f) })
+	l := bandNoise(n, rate, 0.01, 32, func(f float64) float64 { return voiceShape(-f) })
+	// AM: a real audio signal (Hermitian spectrum) on a carrier, 70 %
+	// modulation at its peaks
+	audio := bandNoise(n, rate, 1, 33, func(f float64) float64 { return voiceShape(math.Abs(f)) })
+	var peak float64
+	for _, v := range audio {
+		peak = math.Max(peak, math.Abs(real(v)))
+	}
+	x := make([]complex64, n)
+	for i := range x {
+		env := syllabic(i, rate)
+		t := float64(i) / rate
+		su := u[i] * complex(env*math.Cos(2*math.Pi*usb*t), env*math.Sin(2*math.Pi*usb*t))
+		e2 := syllabic(i+12345, rate)
+		sl := l[i] * complex(e2*math.Cos(2*math.Pi*lsb*t), e2*math.Sin(2*math.Pi*lsb*t))
+		a := 0.1 * (1 + 0.7*real(audio[i])/peak*syllabic(i+777, rate))
+		sa := complex(a*math.Cos(2*math.Pi*am*t), a*math.Sin(2*math.Pi*am*t))
+		x[i] = complex64(su + sl + sa)
+	}
+	return addNoise(x, 1e-9*rate, 34) // −90 dBFS/Hz
+}
+
+func TestDetectVoiceSignals(t *testing.T) {
+	// Kinds and carriers are those the capture was built with; the issue
+	// asks for each within 200 Hz.
+	const (
+		rate  = 48000.0
+		tolHz = 200.0
+	)
+	want := []struct {
+		kind    string
+		carrier float64
+	}{
+		{KindUSB, -15000}, {KindLSB, 4000}, {KindAM, 14000},
+	}
+	x := voiceCapture(1<<19, rate, -15000, 4000, 14000) // 10.9 s
+	a := NewAccumulator(2048, rate)
+	a.Add(x)
+	sigs := Detect(a.PSD(), rate, DetectOptions{})
+	if len(sigs) != len(want) {
+		t.Fatalf("found %d signals %+v, want %d", len(sigs), sigs, len(want))
+	}
+	for i, w := range want {
+		s := sigs[i]
+		t.Logf("%s carrier %.1f Hz (want %.0f), edges %.1f…%.1f Hz, SNR %.1f dB", s.Kind, s.OffsetHz, w.carrier, s.LowHz, s.HighHz, s.SNRdB)
+		if s.Kind != w.kind || math.Abs(s.OffsetHz-w.carrier) > tolHz {
+			t.Errorf("signal %d: %s at %.1f Hz, want %s at %.0f", i, s.Kind, s.OffsetHz, w.kind, w.carrier)
+		}
+		if s.SNRdB < 20 {
+			t.Errorf("signal %d: SNR %.1f dB, want a strong signal", i, s.SNRdB)
+		}
+	}
+}
+
+func TestDetectCarrierAndNothing(t *testing.T) {
+	const rate = 48000.0
+	// noise alone: nothing found (threshold 8 dB above the floor of a
+	// 100-segment average: a noise bin that high has negligible
+	// probability, chi-square with 200 degrees of freedom, common
+	// practice)
+	a := NewAccumulator(1024, rate)
+	a.Add(addNoise(make([]complex64, 1<<17), 1e-6, 35))
+	if s := Detect(a.PSD(), rate, DetectOptions{}); len(s) != 0 {
+		t.Errorf("noise only: found %+v", s)
+	}
+	// an unmodulated carrier
+	a.Reset()
+	a.Add(addNoise(lines(1<<17, rate, line{f: -7031.25 + 10, amp: 0.01}), 1e-6, 36))
+	s := Detect(a.PSD(), rate, DetectOptions{})
+	if len(s) != 1 || s[0].Kind != KindCarrier || math.Abs(s[0].OffsetHz-(-7021.25)) > rate/1024 {
+		t.Errorf("carrier: found %+v, want one carrier at −7021.25 Hz", s)
+	}
+	if Detect(nil, rate, DetectOptions{}) != nil || Detect(make([]float64, 64), rate, DetectOptions{}) != nil {
+		t.Error("empty or silent spectrum: want no signals")
+	}
+}
