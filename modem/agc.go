@@ -1,0 +1,153 @@
+package modem
+
+import (
+	"fmt"
+	"math"
+)
+
+// AGCMode selects the automatic gain control of a receiver. The zero value
+// is AGCOff: a fixed gain.
+type AGCMode int
+
+// AGC modes.
+const (
+	AGCOff AGCMode = iota
+	AGCSlow
+	AGCMedium
+	AGCFast
+)
+
+// String returns off, slow, medium or fast.
+func (m AGCMode) String() string {
+	switch m {
+	case AGCOff:
+		return "off"
+	case AGCSlow:
+		return "slow"
+	case AGCMedium:
+		return "medium"
+	case AGCFast:
+		return "fast"
+	}
+	return fmt.Sprintf("AGCMode(%d)", int(m))
+}
+
+// ParseAGC parses off, slow, medium or fast.
+func ParseAGC(s string) (AGCMode, error) {
+	for m := AGCOff; m <= AGCFast; m++ {
+		if m.String() == s {
+			return m, nil
+		}
+	}
+	return 0, fmt.Errorf("unknown agc %q (off, slow, medium, fast)", s)
+}
+
+// AGCTiming is the time behaviour of an AGC: the envelope rises towards a
+// louder peak with time constant Attack, holds for Hang after the last
+// peak, then falls at Decay dB per second.
+type AGCTiming struct {
+	Attack float64 // s
+	Hang   float64 // s
+	Decay  float64 // dB/s
+}
+
+// Timing returns the figures of the mode (common practice for HF speech
+// receivers; the zero AGCTiming for AGCOff):
+//
+//	slow    attack 2 ms, hang 1.0 s,  decay  6 dB/s
+//	medium  attack 2 ms, hang 0.3 s,  decay 20 dB/s
+//	fast    attack 2 ms, hang 0.1 s,  decay 60 dB/s
+func (m AGCMode) Timing() AGCTiming {
+	switch m {
+	case AGCSlow:
+		return AGCTiming{Attack: 0.002, Hang: 1.0, Decay: 6}
+	case AGCMedium:
+		return AGCTiming{Attack: 0.002, Hang: 0.3, Decay: 20}
+	case AGCFast:
+		return AGCTiming{Attack: 0.002, Hang: 0.1, Decay: 60}
+	}
+	return AGCTiming{}
+}
+
+// AGC targets and limits (common practice).
+const (
+	agcTargetPeak = 0.5   // output peak the AGC aims at, −6 dBFS
+	agcMaxGainDB  = 80    // most gain the AGC applies
+	agcLookahead  = 0.004 // s: the audio is delayed this much so the gain drops before a peak
+)
+
+// AGC is a peak-following automatic gain control with look-ahead: the
+// envelope e follows |x| up with the attack time constant, holds for the
+// hang time, then decays exponentially at the decay rate; the output is
+// x delayed by the look-ahead times target/e (at most agcMaxGainDB), so a
+// sudden onset is already turned down when it leaves the delay line.
+type AGC struct {
+	t            AGCTiming
+	aAttack      float64 // one-pole coefficient of the attack
+	decay        float64 // per-sample factor of the decay
+	hangN, hangC int
+	env          float64
+	floor        float64 // env below which the gain saturates
+	line         []float32
+	pos          int
+}
+
+// NewAGC returns an AGC with timing t at rate Hz. It panics if t.Attack or
+// t.Decay is not positive.
+func NewAGC(t AGCTiming, rate float64) *AGC {
+	if !(t.Attack > 0) || !(t.Decay > 0) {
+		panic("modem: AGC attack and decay must be positive")
+	}
+	a := &AGC{t: t,
+		aAttack: 1 - math.Exp(-1/(t.Attack*rate)),
+		decay:   math.Pow(10, -t.Decay/20/rate),
+		hangN:   int(t.Hang * rate),
+		floor:   agcTargetPeak * math.Pow(10, -agcMaxGainDB/20.0),
+		line:    make([]float32, max(1, int(math.Round(agcLookahead*rate)))),
+	}
+	a.Reset()
+	return a
+}
+
+// Delay returns the look-ahead delay in samples.
+func (a *AGC) Delay() int { return len(a.line) }
+
+// Reset clears the envelope and the delay line.
+func (a *AGC) Reset() {
+	a.env = a.floor
+	a.hangC = 0
+	a.pos = 0
+	clear(a.line)
+}
+
+// GainDB returns the gain now applied, in dB.
+func (a *AGC) GainDB() float64 { return 20 * math.Log10(agcTargetPeak/a.env) }
+
+// Process applies the AGC to src into dst[:len(src)] (reallocated when
+// short; dst may be src) and returns it.
+func (a *AGC) Process(dst, src []float32) []float32 {
+	if cap(dst) < len(src) {
+		dst = make([]float32, len(src))
+	}
+	dst = dst[:len(src)]
+	for i, x := range src {
+		v := math.Abs(float64(x))
+		switch {
+		case v > a.env:
+			a.env += a.aAttack * (v - a.env)
+			a.hangC = a.hangN
+		case a.hangC > 0:
+			a.hangC--
+		default:
+			a.env = math.Max(a.env*a.decay, a.floor)
+		}
+		y := a.line[a.pos]
+		a.line[a.pos] = x
+		a.pos++
+		if a.pos == len(a.line) {
+			a.pos = 0
+		}
+		dst[i] = float32(float64(y) * agcTargetPeak / a.env)
+	}
+	return dst
+}

@@ -1,0 +1,300 @@
+package modem
+
+import "math"
+
+// stageChunk is the number of input samples a stage takes per inner pass;
+// it bounds each stage's buffer whatever block size the caller uses.
+const stageChunk = 4096
+
+// ShiftDecimator is a frequency-translating polyphase decimator: it mixes
+// the input down by freq Hz and low-pass filters and decimates by d in one
+// pass,
+//
+//	y[m] = Σₖ h[k]·x[n−k]·e^{−jω(n−k)} = e^{−jωn}·Σₖ (h[k]·e^{jωk})·x[n−k],
+//	n = m·d + phase,  ω = 2π·freq/rate,
+//
+// so the mixer is folded into complex taps h[k]·e^{jωk} and only the
+// outputs are rotated, once per d inputs (Crochiere & Rabiner, Multirate
+// Digital Signal Processing, 1983, sec. 7.2, frequency-translating
+// filters). The phase of the rotation is computed from the absolute input
+// index with a 64-bit fixed-point accumulator (2⁶⁴ ≙ one cycle), so there
+// is no drift however long the stream; within a block it is advanced by a
+// float64 recursion restarted from the exact value at every block.
+//
+// The taps and arithmetic are float32 with the complex products written
+// out on real and imaginary parts (Go may evaluate complex64 products
+// through complex128). Hand-written: no library offers a streaming
+// frequency-translating decimator.
+type ShiftDecimator struct {
+	cr, ci []float32 // folded taps in window order: c[i] = h[L−1−i]·e^{jω(L−1−i)}
+	l, d   int
+	phase  int    // output at input indices m·d + phase
+	step   uint64 // −freq/rate in 2⁻⁶⁴ cycles per sample
+	rot    complex128
+	buf    []complex64 // history (l−1) then the current chunk
+	pos    int64       // absolute index of the next input sample
+}
+
+// NewShiftDecimator returns a decimator by d with the given low-pass taps
+// (copied), mixing down by freq Hz at rate Hz; output m is taken at input
+// index m·d + phase. It panics if taps is empty, d < 1 or phase is not in
+// [0, d).
+func NewShiftDecimator(taps []float64, d, phase int, freq, rate float64) *ShiftDecimator {
+	if len(taps) == 0 || d < 1 || phase < 0 || phase >= d {
+		panic("modem: invalid shift decimator parameters")
+	}
+	l := len(taps)
+	s := &ShiftDecimator{l: l, d: d, phase: phase, cr: make([]float32, l), ci: make([]float32, l)}
+	s.step = phaseStep(-freq / rate)
+	w := 2 * math.Pi * freq / rate
+	for k, h := range taps {
+		sn, cs := math.Sincos(w * float64(k))
+		s.cr[l-1-k] = float32(h * cs)
+		s.ci[l-1-k] = float32(h * sn)
+	}
+	s.rot = phasor(uint64(d) * s.step)
+	s.buf = make([]complex64, l-1, l-1+stageChunk)
+	return s
+}
+
+// Decim returns the decimation factor.
+func (s *ShiftDecimator) Decim() int { return s.d }
+
+// Delay returns the group delay in input samples, (L−1)/2 − phase: output
+// m represents the input at time (m·d + phase − (L−1)/2)/rate.
+func (s *ShiftDecimator) Delay() float64 { return float64(s.l-1)/2 - float64(s.phase) }
+
+// Reset clears the history and returns to input index 0.
+func (s *ShiftDecimator) Reset() {
+	clear(s.buf[:s.l-1])
+	s.buf = s.buf[:s.l-1]
+	s.pos = 0
+}
+
+// MaxOut returns the most outputs n inputs can give.
+func (s *ShiftDecimator) MaxOut(n int) int { return n/s.d + 1 }
+
+// Process decimates src and appends the outputs to dst[:0], returning it.
+// dst is reallocated when its capacity is below MaxOut(len(src)); it must
+// not overlap src.
+func (s *ShiftDecimator) Process(dst, src []complex64) []complex64 {
+	if cap(dst) < s.MaxOut(len(src)) {
+		dst = make([]complex64, 0, s.MaxOut(len(src)))
+	}
+	dst = dst[:0]
+	for len(src) > 0 {
+		c := min(stageChunk, len(src))
+		s.buf = append(s.buf[:s.l-1], src[:c]...)
+		dst = s.Block(dst, s.buf, s.pos)
+		s.pos += int64(c)
+		copy(s.buf, s.buf[c:])
+		src = src[c:]
+	}
+	return dst
+}
+
+// Block is the stateless kernel of Process: win holds the inputs of
+// absolute indices a−(L−1) … a+len(win)−L (the L−1 samples before a
+// then the block), and the outputs whose index m·d + phase lies in the
+// block are appended to dst. Blocks of one stream may be run in any order
+// and on any goroutine; their outputs, concatenated, equal Process's.
+func (s *ShiftDecimator) Block(dst, win []complex64, a int64) []complex64 {
+	l := s.l
+	nb := int64(len(win) - (l - 1))
+	// first output index n ≥ a with n ≡ phase (mod d)
+	d := int64(s.d)
+	r := (a - int64(s.phase)) % d
+	if r < 0 {
+		r += d
+	}
+	n := a
+	if r != 0 {
+		n += d - r
+	}
+	if n >= a+nb {
+		return dst
+	}
+	p := phasor(uint64(n) * s.step)
+	pr, pi := real(p), imag(p)
+	rr, ri := real(s.rot), imag(s.rot)
+	cr, ci := s.cr[:l], s.ci[:l]
+	for j := int(n - a); j < int(nb); j += s.d {
+		w := win[j : j+l]
+		w = w[:len(cr)]
+		var ar, ai, br, bi float32
+		k := 0
+		for ; k+1 < len(cr); k += 2 {
+			x0, x1 := w[k], w[k+1]
+			xr0, xi0 := real(x0), imag(x0)
+			xr1, xi1 := real(x1), imag(x1)
+			ar += cr[k]*xr0 - ci[k]*xi0
+			ai += cr[k]*xi0 + ci[k]*xr0
+			br += cr[k+1]*xr1 - ci[k+1]*xi1
+			bi += cr[k+1]*xi1 + ci[k+1]*xr1
+		}
+		if k < len(cr) {
+			x0 := w[k]
+			xr0, xi0 := real(x0), imag(x0)
+			ar += cr[k]*xr0 - ci[k]*xi0
+			ai += cr[k]*xi0 + ci[k]*xr0
+		}
+		ar += br
+		ai += bi
+		fr, fi := float32(pr), float32(pi)
+		dst = append(dst, complex(ar*fr-ai*fi, ar*fi+ai*fr))
+		pr, pi = pr*rr-pi*ri, pr*ri+pi*rr
+	}
+	return dst
+}
+
+// Decimator is a polyphase low-pass decimator of complex samples with real
+// taps, y[m] = Σₖ h[k]·x[m·d + phase − k], computing only the kept
+// outputs (Crochiere & Rabiner, 1983, sec. 3.3). float32 arithmetic on
+// real and imaginary parts, written by hand like FIR.
+type Decimator struct {
+	rev   []float32 // taps reversed
+	l, d  int
+	phase int
+	next  int // index in the coming input of the next output (window end)
+	buf   []complex64
+}
+
+// NewDecimator returns a decimator by d with the given taps (copied); its
+// output m is taken at input index m·d + phase. It panics if taps is
+// empty, d < 1 or phase is not in [0, d).
+func NewDecimator(taps []float64, d, phase int) *Decimator {
+	if len(taps) == 0 || d < 1 || phase < 0 || phase >= d {
+		panic("modem: invalid decimator parameters")
+	}
+	f := &Decimator{rev: reverse32(taps), l: len(taps), d: d, phase: phase, next: phase}
+	f.buf = make([]complex64, f.l-1, f.l-1+stageChunk)
+	return f
+}
+
+// Delay returns the group delay in input samples, (L−1)/2 − phase.
+func (f *Decimator) Delay() float64 { return float64(f.l-1)/2 - float64(f.phase) }
+
+// Reset clears the history and the phase.
+func (f *Decimator) Reset() {
+	clear(f.buf[:f.l-1])
+	f.buf = f.buf[:f.l-1]
+	f.next = f.phase
+}
+
+// MaxOut returns the most outputs n inputs can give.
+func (f *Decimator) MaxOut(n int) int { return n/f.d + 1 }
+
+// Process decimates src, appending the outputs to dst[:0] (reallocated
+// when its capacity is below MaxOut(len(src))), and returns it. dst must
+// not overlap src.
+func (f *Decimator) Process(dst, src []complex64) []complex64 {
+	if cap(dst) < f.MaxOut(len(src)) {
+		dst = make([]complex64, 0, f.MaxOut(len(src)))
+	}
+	dst = dst[:0]
+	l := f.l
+	h := f.rev
+	for len(src) > 0 {
+		c := min(stageChunk, len(src))
+		buf := append(f.buf[:l-1], src[:c]...)
+		j := f.next
+		for ; j < c; j += f.d {
+			w := buf[j : j+l]
+			w = w[:len(h)]
+			var r0, i0, r1, i1 float32
+			k := 0
+			for ; k+1 < len(h); k += 2 {
+				a, b := w[k], w[k+1]
+				r0 += h[k] * real(a)
+				i0 += h[k] * imag(a)
+				r1 += h[k+1] * real(b)
+				i1 += h[k+1] * imag(b)
+			}
+			if k < len(h) {
+				r0 += h[k] * real(w[k])
+				i0 += h[k] * imag(w[k])
+			}
+			dst = append(dst, complex(r0+r1, i0+i1))
+		}
+		f.next = j - c
+		copy(buf, buf[c:])
+		f.buf = buf[:l-1]
+		src = src[c:]
+	}
+	return dst
+}
+
+// Interpolator raises the rate by an integer factor u with a polyphase
+// low-pass, y[n·u + p] = Σᵢ u·h[p + i·u]·x[n − i] (Crochiere & Rabiner,
+// 1983, sec. 3.3), h designed at the output rate with unity DC gain.
+type Interpolator struct {
+	ph  [][]float32 // ph[p][i] = u·h[p + i·u], reversed in i
+	u   int
+	k   int // taps per phase
+	l   int
+	buf []complex64
+}
+
+// NewInterpolator returns an interpolator by u with the low-pass taps h
+// (at the output rate, unity DC gain, copied). It panics if u < 1 or h is
+// empty.
+func NewInterpolator(h []float64, u int) *Interpolator {
+	if u < 1 || len(h) == 0 {
+		panic("modem: invalid interpolator parameters")
+	}
+	k := (len(h) + u - 1) / u
+	it := &Interpolator{u: u, k: k, l: len(h)}
+	for p := range u {
+		row := make([]float32, k)
+		for i := range k {
+			if j := p + i*u; j < len(h) {
+				row[k-1-i] = float32(float64(u) * h[j])
+			}
+		}
+		it.ph = append(it.ph, row)
+	}
+	it.buf = make([]complex64, k-1, k-1+stageChunk)
+	return it
+}
+
+// Delay returns the group delay in output samples, (len(h)−1)/2.
+func (it *Interpolator) Delay() float64 { return float64(it.l-1) / 2 }
+
+// Reset clears the history.
+func (it *Interpolator) Reset() {
+	clear(it.buf[:it.k-1])
+	it.buf = it.buf[:it.k-1]
+}
+
+// Process interpolates src into dst[:len(src)·u] (reallocated when short)
+// and returns it. dst must not overlap src.
+func (it *Interpolator) Process(dst, src []complex64) []complex64 {
+	n := len(src) * it.u
+	if cap(dst) < n {
+		dst = make([]complex64, n)
+	}
+	dst = dst[:n]
+	k := it.k
+	o := 0
+	for len(src) > 0 {
+		c := min(stageChunk, len(src))
+		buf := append(it.buf[:k-1], src[:c]...)
+		for j := range c {
+			w := buf[j : j+k]
+			for _, h := range it.ph {
+				h = h[:len(w)]
+				var r, i float32
+				for t, v := range w {
+					r += h[t] * real(v)
+					i += h[t] * imag(v)
+				}
+				dst[o] = complex(r, i)
+				o++
+			}
+		}
+		copy(buf, buf[c:])
+		it.buf = buf[:k-1]
+		src = src[c:]
+	}
+	return dst
+}

@@ -1,0 +1,349 @@
+package modem
+
+import (
+	"errors"
+	"fmt"
+	"math"
+)
+
+// Mode is a receiver's demodulation.
+type Mode int
+
+// Demodulation modes.
+const (
+	USB Mode = iota // upper sideband, product detection
+	LSB             // lower sideband, product detection
+	AM              // envelope detection
+	SAM             // synchronous AM: carrier-tracking loop
+)
+
+// String returns usb, lsb, am or sam.
+func (m Mode) String() string {
+	switch m {
+	case USB:
+		return "usb"
+	case LSB:
+		return "lsb"
+	case AM:
+		return "am"
+	case SAM:
+		return "sam"
+	}
+	return fmt.Sprintf("Mode(%d)", int(m))
+}
+
+// ParseMode parses usb, lsb, am or sam.
+func ParseMode(s string) (Mode, error) {
+	for m := USB; m <= SAM; m++ {
+		if m.String() == s {
+			return m, nil
+		}
+	}
+	return 0, fmt.Errorf("unknown mode %q (usb, lsb, am, sam)", s)
+}
+
+// Receiver defaults (common practice for voice channels).
+const (
+	DefaultAudioRate = 48000
+	DefaultSSBLow    = 300  // Hz, low edge of the SSB audio band
+	DefaultSSBHigh   = 2700 // Hz, SSB audio bandwidth
+	DefaultAMHigh    = 5000 // Hz, AM audio bandwidth
+	DefaultRxAtten   = 80   // dB, alias and adjacent-channel rejection
+	ssbTransition    = 450  // Hz, transition band of the SSB channel filter
+	amTransitionFrac = 0.2  // AM channel transition as a fraction of the bandwidth
+)
+
+// RxConfig describes one receive channel. The zero value of every field
+// but Rate is a default: USB, 300–2700 Hz, 48 kHz audio, AGC off, unity
+// gain, 80 dB rejection.
+type RxConfig struct {
+	Rate   float64 // capture sample rate, Hz (required)
+	Offset float64 // carrier (suppressed for SSB) relative to the capture centre, Hz
+	Mode   Mode
+	// Low and High bound the audio pass band in Hz: for SSB the band
+	// Low…High above (USB) or below (LSB) the carrier, default 300…2700;
+	// for AM and SAM High is the audio bandwidth (default 5000) and Low is
+	// ignored.
+	Low, High float64
+	AudioRate float64 // Hz, default 48000
+	AGC       AGCMode
+	GainDB    float64 // fixed gain with AGC off (0 = unity)
+	AttenDB   float64 // alias and adjacent-channel rejection, default 80
+}
+
+// withDefaults fills the zero fields and validates.
+func (c RxConfig) withDefaults() (RxConfig, error) {
+	if !(c.Rate > 0) || math.IsInf(c.Rate, 0) {
+		return c, errors.New("sample rate must be positive")
+	}
+	if c.AudioRate == 0 {
+		c.AudioRate = DefaultAudioRate
+	}
+	if c.AttenDB == 0 {
+		c.AttenDB = DefaultRxAtten
+	}
+	switch c.Mode {
+	case USB, LSB:
+		if c.Low == 0 {
+			c.Low = DefaultSSBLow
+		}
+		if c.High == 0 {
+			c.High = DefaultSSBHigh
+		}
+		if !(c.Low > 0) || !(c.High > c.Low+ssbTransition/2) {
+			return c, fmt.Errorf("SSB audio band %g…%g Hz is too narrow or inverted", c.Low, c.High)
+		}
+	case AM, SAM:
+		if c.High == 0 {
+			c.High = DefaultAMHigh
+		}
+		if !(c.High > 0) {
+			return c, fmt.Errorf("AM bandwidth %g Hz must be positive", c.High)
+		}
+	default:
+		return c, fmt.Errorf("unknown mode %d", c.Mode)
+	}
+	if c.AudioRate > c.Rate {
+		return c, fmt.Errorf("audio rate %g Hz is above the capture rate %g Hz", c.AudioRate, c.Rate)
+	}
+	if !(c.AudioRate >= 2*c.High) {
+		return c, fmt.Errorf("audio rate %g Hz cannot carry a %g Hz audio band", c.AudioRate, c.High)
+	}
+	if math.Abs(c.Offset)+c.High > c.Rate/2 {
+		return c, fmt.Errorf("channel at %+g Hz (±%g Hz) lies outside the capture's band ±%g Hz", c.Offset, c.High, c.Rate/2)
+	}
+	return c, nil
+}
+
+// channelShape returns where the channel is centred relative to the
+// carrier (Hz), its half-width and the transition of its filter.
+func (c RxConfig) channelShape() (shift, half, trans float64) {
+	switch c.Mode {
+	case USB:
+		return (c.Low + c.High) / 2, (c.High - c.Low) / 2, ssbTransition
+	case LSB:
+		return -(c.Low + c.High) / 2, (c.High - c.Low) / 2, ssbTransition
+	}
+	return 0, c.High, amTransitionFrac * c.High
+}
+
+// Channel is the whole receive chain of one channel, from capture samples
+// to audio:
+//
+//	ShiftDecimator (mix to the channel centre, comb-shaped first stage)
+//	→ Kaiser Decimators → channel low-pass (the complex band-pass
+//	Low…High of the sideband, shifted to zero) → Interpolator or Resampler
+//	to the audio rate → demodulator → AGC or fixed gain.
+//
+// Output sample k represents the capture at time (k − Delay())/AudioRate:
+// the chain's group delay is made a whole number of audio samples by the
+// phases of the decimators, and the demodulator's oscillator is aligned
+// with the capture's time.
+type Channel struct {
+	cfg    RxConfig
+	plan   ChannelPlan
+	first  *ShiftDecimator
+	stages []*Decimator
+	filt   *FIR
+	interp *Interpolator
+	rs     *Resampler
+	ssb    *SSBDemod
+	am     *AMDemod
+	sam    *SAMDemod
+	agc    *AGC
+	gain   float32
+	delay  int
+	a      []complex64   // first-stage output (Process)
+	sbuf   [][]complex64 // outputs of the Kaiser stages
+	f, z   []complex64   // channel filter and rate converter outputs
+}
+
+// NewChannel returns the receive chain for cfg.
+func NewChannel(cfg RxConfig) (*Channel, error) {
+	cfg, err := cfg.withDefaults()
+	if err != nil {
+		return nil, err
+	}
+	shift, half, trans := cfg.channelShape()
+	protect := half + trans/2
+	plan, err := PlanChannel(cfg.Rate, cfg.AudioRate, 4*protect, protect, cfg.AttenDB)
+	if err != nil {
+		return nil, err
+	}
+	c := &Channel{cfg: cfg, plan: plan}
+	fs, fw, fa := cfg.Rate, plan.WorkRate, cfg.AudioRate
+
+	// Delays with every decimator phase 0, in seconds.
+	first := combTaps(plan.First.Decim, plan.First.Order)
+	t := -float64(len(first)-1) / 2 / fs
+	rate := fs / float64(plan.First.Decim)
+	var stageTaps [][]float64
+	for _, d := range plan.Stages {
+		h := kaiserStageTaps(d, rate, protect, cfg.AttenDB)
+		stageTaps = append(stageTaps, h)
+		t -= float64(len(h)-1) / 2 / rate
+		rate /= float64(d)
+	}
+	filt := KaiserLowpass(half, trans, fw, cfg.AttenDB)
+	t -= float64(len(filt)-1) / 2 / fw
+	up := fa / fw
+	if math.Abs(up-math.Round(up)) < 1e-9 {
+		ih := KaiserLowpass(fw/2, fw-2*protect, fa, cfg.AttenDB)
+		c.interp = NewInterpolator(ih, int(math.Round(up)))
+		t -= c.interp.Delay() / fa
+	} else {
+		c.rs, err = NewResamplerSpec(ResamplerSpec{InRate: fw, OutRate: fa, Pass: protect, AttenDB: cfg.AttenDB})
+		if err != nil {
+			return nil, err
+		}
+		t -= c.rs.Delay() / fa
+	}
+	// Choose the phases: advance the sampling grid by s input samples,
+	// s < Decim, so that the total delay is a whole number of audio samples.
+	k := math.Ceil(-t*fa - 1e-9)
+	s := int(math.Round((-k/fa - t) * fs))
+	s = max(0, min(s, plan.Decim-1))
+	t += float64(s) / fs
+	c.delay = int(math.Round(-t * fa))
+	ph := s % plan.First.Decim
+	s /= plan.First.Decim
+	c.first = NewShiftDecimator(first, plan.First.Decim, ph, cfg.Offset+shift, fs)
+	for i, d := range plan.Stages {
+		c.stages = append(c.stages, NewDecimator(stageTaps[i], d, s%d))
+		s /= d
+	}
+	c.filt = NewFIR(filt)
+	c.sbuf = make([][]complex64, len(c.stages))
+
+	switch cfg.Mode {
+	case USB, LSB:
+		c.ssb = NewSSBDemod(shift, fa)
+		c.ssb.Advance(-c.delay)
+	case AM:
+		c.am = NewAMDemod(fa)
+	case SAM:
+		c.sam = NewSAMDemod(fa)
+	}
+	c.gain = float32(math.Pow(10, cfg.GainDB/20))
+	if cfg.AGC != AGCOff {
+		c.agc = NewAGC(cfg.AGC.Timing(), fa)
+		c.delay += c.agc.Delay()
+	}
+	return c, nil
+}
+
+// Config returns the configuration with defaults filled in.
+func (c *Channel) Config() RxConfig { return c.cfg }
+
+// Plan returns the decimation plan.
+func (c *Channel) Plan() ChannelPlan { return c.plan }
+
+// Delay returns the chain's delay in whole audio samples.
+func (c *Channel) Delay() int { return c.delay }
+
+// SAM returns the synchronous detector of a sam channel (nil otherwise),
+// for its lock report.
+func (c *Channel) SAM() *SAMDemod { return c.sam }
+
+// First returns the first stage, which Receiver runs on several
+// goroutines through its Block method.
+func (c *Channel) First() *ShiftDecimator { return c.first }
+
+// Reset returns the chain to its initial state.
+func (c *Channel) Reset() {
+	c.first.Reset()
+	for _, s := range c.stages {
+		s.Reset()
+	}
+	c.filt.Reset()
+	if c.interp != nil {
+		c.interp.Reset()
+	}
+	if c.rs != nil {
+		c.rs.Reset()
+	}
+	if c.ssb != nil {
+		c.ssb.Reset()
+		c.ssb.Advance(-c.delay + c.agcDelay())
+	}
+	if c.am != nil {
+		c.am.Reset()
+	}
+	if c.sam != nil {
+		c.sam.Reset()
+	}
+	if c.agc != nil {
+		c.agc.Reset()
+	}
+}
+
+func (c *Channel) agcDelay() int {
+	if c.agc == nil {
+		return 0
+	}
+	return c.agc.Delay()
+}
+
+// Process runs capture samples src through the chain and appends the audio
+// to dst[:0], returning it (dst grows as needed; its capacity is kept
+// between calls by the caller for zero allocation).
+func (c *Channel) Process(dst []float32, src []complex64) []float32 {
+	dst = dst[:0]
+	for len(src) > 0 {
+		n := min(len(src), stageChunk)
+		c.a = c.first.Process(c.a, src[:n])
+		dst = c.processFirst(dst, c.a)
+		src = src[n:]
+	}
+	return dst
+}
+
+// ProcessFirst runs outputs of the first stage (see First) through the
+// rest of the chain, appending the audio to dst[:0] and returning it.
+func (c *Channel) ProcessFirst(dst []float32, y []complex64) []float32 {
+	dst = dst[:0]
+	for len(y) > 0 {
+		n := min(len(y), stageChunk)
+		dst = c.processFirst(dst, y[:n])
+		y = y[n:]
+	}
+	return dst
+}
+
+func (c *Channel) processFirst(dst []float32, y []complex64) []float32 {
+	x := y
+	for i, s := range c.stages {
+		c.sbuf[i] = s.Process(c.sbuf[i], x)
+		x = c.sbuf[i]
+	}
+	c.f = c.filt.Process(c.f, x)
+	if c.interp != nil {
+		c.z = c.interp.Process(c.z, c.f)
+	} else {
+		c.z = c.rs.Process(c.z, c.f)
+	}
+	z := c.z
+	n := len(dst)
+	if cap(dst)-n < len(z) {
+		nd := make([]float32, n, 2*(n+len(z)))
+		copy(nd, dst)
+		dst = nd
+	}
+	out := dst[n : n+len(z)]
+	switch {
+	case c.ssb != nil:
+		c.ssb.Process(out, z)
+	case c.am != nil:
+		c.am.Process(out, z)
+	default:
+		c.sam.Process(out, z)
+	}
+	if c.agc != nil {
+		c.agc.Process(out, out)
+	} else if c.gain != 1 {
+		for i := range out {
+			out[i] *= c.gain
+		}
+	}
+	return dst[:n+len(z)]
+}
