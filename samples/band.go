@@ -49,13 +49,13 @@ type Station struct {
 
 // BandTruth is the scene's known content.
 type BandTruth struct {
-	RateHz       float64   `json:"rate_hz"`
-	CenterHz     float64   `json:"center_hz"`
-	Seconds      float64   `json:"duration_s"`
-	Samples      int64     `json:"samples"`
-	NoiseDensity float64   `json:"noise_dbfs_per_hz"`
+	RateHz       float64    `json:"rate_hz"`
+	CenterHz     float64    `json:"center_hz"`
+	Seconds      float64    `json:"duration_s"`
+	Samples      int64      `json:"samples"`
+	NoiseDensity float64    `json:"noise_dbfs_per_hz"`
 	AudioBandHz  [2]float64 `json:"audio_band_hz"`
-	Stations     []Station `json:"stations"`
+	Stations     []Station  `json:"stations"`
 }
 
 // Audio band of every voice station, Hz: common practice for SSB
