@@ -1,0 +1,146 @@
+package modem
+
+import (
+	"encoding/json"
+	"math"
+	"math/cmplx"
+	"os"
+	"testing"
+)
+
+type kaiserGolden struct {
+	ScipyVersion string `json:"scipy_version"`
+	Cases        []struct {
+		Cutoff       float64   `json:"cutoff"`
+		Transition   float64   `json:"transition"`
+		Rate         float64   `json:"rate"`
+		AttenDB      float64   `json:"atten_db"`
+		ScipyNumtaps int       `json:"scipy_numtaps"`
+		Beta         float64   `json:"beta"`
+		Taps         []float64 `json:"taps"`
+	} `json:"cases"`
+}
+
+// TestKaiserGolden compares β, the length and the taps with scipy 1.10.1
+// (kaiserord, kaiser_beta, firwin; testdata/gen_kaiser.py).
+func TestKaiserGolden(t *testing.T) {
+	const (
+		tolBeta = 1e-12
+		tolTap  = 1e-12
+	)
+	b, err := os.ReadFile("testdata/kaiser_golden.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var g kaiserGolden
+	if err := json.Unmarshal(b, &g); err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range g.Cases {
+		if beta := KaiserBeta(c.AttenDB); math.Abs(beta-c.Beta) > tolBeta {
+			t.Errorf("A=%g: β %v, scipy %v", c.AttenDB, beta, c.Beta)
+		}
+		want := c.ScipyNumtaps
+		if want%2 == 0 {
+			want++ // KaiserOrder rounds the order up to even
+		}
+		if n := KaiserOrder(c.Transition, c.Rate, c.AttenDB) + 1; n != want {
+			t.Errorf("A=%g tw=%g: %d taps, scipy %d → %d", c.AttenDB, c.Transition, n, c.ScipyNumtaps, want)
+		}
+		// The formula design, before KaiserLowpass's check and tightening.
+		h := windowedSinc(KaiserOrder(c.Transition, c.Rate, c.AttenDB), c.Cutoff/c.Rate, KaiserBeta(c.AttenDB))
+		if len(h) != len(c.Taps) {
+			t.Errorf("length %d, golden %d", len(h), len(c.Taps))
+			continue
+		}
+		for i := range h {
+			if math.Abs(h[i]-c.Taps[i]) > tolTap {
+				t.Errorf("A=%g: tap %d = %v, scipy firwin %v", c.AttenDB, i, h[i], c.Taps[i])
+				break
+			}
+		}
+	}
+}
+
+// TestBesselI0 checks the series against scipy.special.i0 (scipy 1.10.1).
+func TestBesselI0(t *testing.T) {
+	const tolRel = 1e-14
+	for _, c := range []struct{ x, want float64 }{
+		{0, 1},
+		{0.5, 1.0634833707413234},
+		{1, 1.2660658777520082},
+		{5, 27.239871823604442},
+		{10, 2815.716628466254},
+		{20, 43558282.559553534},
+	} {
+		if got := besselI0(c.x); math.Abs(got-c.want) > tolRel*c.want {
+			t.Errorf("I0(%g) = %v, want %v", c.x, got, c.want)
+		}
+	}
+}
+
+// bandExtremes returns the largest deviation of |H| from 1 over
+// [0, pass] and the largest |H| over [stop, rate/2], on a grid of 20000
+// points.
+func bandExtremes(h []float64, pass, stop, rate float64) (ripple, stopGain float64) {
+	const grid = 20000
+	for i := 0; i <= grid; i++ {
+		f := rate / 2 * float64(i) / grid
+		a := cmplx.Abs(FreqResponse(h, f, rate))
+		if f <= pass {
+			ripple = math.Max(ripple, math.Abs(a-1))
+		}
+		if f >= stop {
+			stopGain = math.Max(stopGain, a)
+		}
+	}
+	return
+}
+
+// TestKaiserLowpassSpec checks that the designs meet their figures: ripple
+// and stop-band gain at most δ = 10^(−A/20) (the design equations of
+// Oppenheim & Schafer, 3rd ed., eq. 7.74–7.76, which equal ripple in both
+// bands for the window method), and −6 dB at the cutoff.
+func TestKaiserLowpassSpec(t *testing.T) {
+	const tolCutoffDB = 0.05 // the window method's gain at cutoff is ≈ 1/2
+	for _, c := range []struct{ cutoff, tw, rate, atten float64 }{
+		{1000, 400, 8000, 60},
+		{3000, 1000, 48000, 80},
+		{12000, 2000, 48000, 100},
+		{2000, 1600, 8000, 70},
+		{24000, 36000, 2.4e6, 90},
+		{1500, 1000, 8000, 40},
+	} {
+		h := KaiserLowpass(c.cutoff, c.tw, c.rate, c.atten)
+		if len(h)%2 != 1 {
+			t.Errorf("even length %d", len(h))
+		}
+		delta := math.Pow(10, -c.atten/20)
+		rip, sg := bandExtremes(h, c.cutoff-c.tw/2, c.cutoff+c.tw/2, c.rate)
+		t.Logf("A=%g: %d taps, ripple %.3g (δ %.3g), stop %.1f dB", c.atten, len(h), rip, delta, 20*math.Log10(sg))
+		if rip > delta || sg > delta {
+			t.Errorf("A=%g tw=%g: ripple %.3g, stop gain %.3g (%.2f dB), want ≤ δ = %.3g", c.atten, c.tw, rip, sg, 20*math.Log10(sg), delta)
+		}
+		if g := 20 * math.Log10(cmplx.Abs(FreqResponse(h, c.cutoff, c.rate))); math.Abs(g+6.02) > tolCutoffDB {
+			t.Errorf("gain at cutoff %.3f dB, want −6.02", g)
+		}
+	}
+}
+
+// TestKaiserBandpass checks the band-pass against its figures.
+func TestKaiserBandpass(t *testing.T) {
+	h := KaiserBandpass(300, 2700, 200, 8000, 70)
+	delta := math.Pow(10, -70.0/20)
+	const grid = 8000
+	for i := 0; i <= grid; i++ {
+		f := 4000 * float64(i) / grid
+		a := cmplx.Abs(FreqResponse(h, f, 8000))
+		switch {
+		case f >= 400 && f <= 2600 && math.Abs(a-1) > 2*delta:
+			// two overlapping low-pass ripples: 2δ (common practice)
+			t.Fatalf("pass band %g Hz: |H| = %v", f, a)
+		case (f <= 200 || f >= 2800) && a > 2*delta:
+			t.Fatalf("stop band %g Hz: |H| = %v (%.1f dB)", f, a, 20*math.Log10(a))
+		}
+	}
+}

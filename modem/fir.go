@@ -1,0 +1,147 @@
+package modem
+
+// firChunk is the number of input samples a FIR processes per inner pass;
+// its working buffer holds len(taps)−1+firChunk samples whatever the block
+// size the caller uses.
+const firChunk = 2048
+
+// FIR is a streaming convolution of complex samples with real taps,
+//
+//	y[n] = Σₖ h[k]·x[n−k],  k = 0…len(h)−1,
+//
+// keeping the last len(h)−1 inputs between calls. The arithmetic is
+// float32 (taps rounded to float32), written out on real and imaginary
+// parts: direct convolution by hand, since gonum has no streaming FIR and
+// for the short filters of this package it beats FFT convolution.
+type FIR struct {
+	rev []float32   // taps reversed: rev[k] = h[L−1−k]
+	buf []complex64 // history (L−1) then the current chunk
+	n   int         // len(taps)
+}
+
+// NewFIR returns a FIR filter with the given taps (copied). It panics if
+// taps is empty.
+func NewFIR(taps []float64) *FIR {
+	if len(taps) == 0 {
+		panic("modem: FIR needs at least one tap")
+	}
+	f := &FIR{n: len(taps), rev: reverse32(taps)}
+	f.buf = make([]complex64, f.n-1, f.n-1+firChunk)
+	return f
+}
+
+func reverse32(taps []float64) []float32 {
+	r := make([]float32, len(taps))
+	for k, v := range taps {
+		r[len(taps)-1-k] = float32(v)
+	}
+	return r
+}
+
+// Len returns the number of taps.
+func (f *FIR) Len() int { return f.n }
+
+// Delay returns the group delay (len−1)/2 in samples, exact for the
+// linear-phase (symmetric or antisymmetric) taps this package designs.
+func (f *FIR) Delay() float64 { return float64(f.n-1) / 2 }
+
+// Reset clears the history to zeros.
+func (f *FIR) Reset() { clear(f.buf[:f.n-1]) }
+
+// Process filters src into dst and returns dst[:len(src)]. A nil or short
+// dst is allocated; dst may be src itself.
+func (f *FIR) Process(dst, src []complex64) []complex64 {
+	if cap(dst) < len(src) {
+		dst = make([]complex64, len(src))
+	}
+	dst = dst[:len(src)]
+	h := f.rev
+	L := f.n
+	for off := 0; off < len(src); off += firChunk {
+		c := min(firChunk, len(src)-off)
+		buf := append(f.buf[:L-1], src[off:off+c]...)
+		out := dst[off : off+c]
+		for i := range out {
+			w := buf[i : i+L]
+			w = w[:len(h)]
+			var r0, i0, r1, i1 float32
+			k := 0
+			for ; k+1 < len(h); k += 2 {
+				a, b := w[k], w[k+1]
+				ha, hb := h[k], h[k+1]
+				r0 += ha * real(a)
+				i0 += ha * imag(a)
+				r1 += hb * real(b)
+				i1 += hb * imag(b)
+			}
+			if k < len(h) {
+				r0 += h[k] * real(w[k])
+				i0 += h[k] * imag(w[k])
+			}
+			out[i] = complex(r0+r1, i0+i1)
+		}
+		copy(f.buf[:L-1], buf[c:c+L-1])
+	}
+	return dst
+}
+
+// RealFIR is the FIR of real samples: y[n] = Σₖ h[k]·x[n−k] in float32.
+type RealFIR struct {
+	rev []float32
+	buf []float32
+	n   int
+}
+
+// NewRealFIR returns a real FIR filter with the given taps (copied). It
+// panics if taps is empty.
+func NewRealFIR(taps []float64) *RealFIR {
+	if len(taps) == 0 {
+		panic("modem: FIR needs at least one tap")
+	}
+	f := &RealFIR{n: len(taps), rev: reverse32(taps)}
+	f.buf = make([]float32, f.n-1, f.n-1+firChunk)
+	return f
+}
+
+// Len returns the number of taps.
+func (f *RealFIR) Len() int { return f.n }
+
+// Delay returns the group delay (len−1)/2 in samples.
+func (f *RealFIR) Delay() float64 { return float64(f.n-1) / 2 }
+
+// Reset clears the history to zeros.
+func (f *RealFIR) Reset() { clear(f.buf[:f.n-1]) }
+
+// Process filters src into dst and returns dst[:len(src)]. A nil or short
+// dst is allocated; dst may be src itself.
+func (f *RealFIR) Process(dst, src []float32) []float32 {
+	if cap(dst) < len(src) {
+		dst = make([]float32, len(src))
+	}
+	dst = dst[:len(src)]
+	h := f.rev
+	L := f.n
+	for off := 0; off < len(src); off += firChunk {
+		c := min(firChunk, len(src)-off)
+		buf := append(f.buf[:L-1], src[off:off+c]...)
+		out := dst[off : off+c]
+		for i := range out {
+			w := buf[i : i+L]
+			w = w[:len(h)]
+			var s0, s1, s2, s3 float32
+			k := 0
+			for ; k+3 < len(h); k += 4 {
+				s0 += h[k] * w[k]
+				s1 += h[k+1] * w[k+1]
+				s2 += h[k+2] * w[k+2]
+				s3 += h[k+3] * w[k+3]
+			}
+			for ; k < len(h); k++ {
+				s0 += h[k] * w[k]
+			}
+			out[i] = (s0 + s1) + (s2 + s3)
+		}
+		copy(f.buf[:L-1], buf[c:c+L-1])
+	}
+	return dst
+}
