@@ -118,18 +118,24 @@ func (s *allpassSplitter) Response(f float64) complex128 {
 }
 
 func (s *allpassSplitter) response(w float64) complex128 {
+	i, q := s.paths(w)
+	return i + complex(0, 1)*q
+}
+
+// paths returns the I and Q path responses at ω rad/sample.
+func (s *allpassSplitter) paths(w float64) (i, q complex128) {
 	sn, cs := math.Sincos(-2 * w)
 	z2 := complex(cs, sn) // z⁻²
-	i := complex(1, 0)
+	i = 1
 	for _, a := range s.ai {
 		i *= (complex(a, 0) - z2) / (1 - complex(a, 0)*z2)
 	}
 	sn, cs = math.Sincos(-w)
-	q := complex(cs, sn)
+	q = complex(cs, sn)
 	for _, a := range s.aq {
 		q *= (complex(a, 0) - z2) / (1 - complex(a, 0)*z2)
 	}
-	return i + complex(0, 1)*q
+	return i, q
 }
 
 func (s *allpassSplitter) NewFilter() Filter {

@@ -23,9 +23,10 @@ import (
 // Circuit Theory CT-19(2), 1972; Oppenheim & Schafer, 3rd ed., sec. 7.7).
 // The taps come back by the discrete sine transform of A.
 
-// remezDensity is the grid points per unknown (scipy.signal.remez's
-// default grid_density is also 16).
-const remezDensity = 16
+// remezDensity is the grid points per unknown. scipy.signal.remez's
+// default of 16 leaves its taps about 1e-5 from the continuous optimum
+// for short designs; 64 brings them within about 4e-7.
+const remezDensity = 64
 
 // errRemez reports a failed exchange (not expected for valid specs).
 var errRemez = errors.New("equiripple design did not converge")

@@ -136,13 +136,13 @@ func (f *weaverFilter) Process(dst []complex64, src []float32) []complex64 {
 			}
 			f.re[hist+i] = x * float32(real(p))
 			f.im[hist+i] = x * float32(imag(p))
-			// Up-mix phasor e^{jω₀(n−M)} = conj(p)·e^{jω₀M}, stored for later.
+			// Up-mix phasor e^{jω₀(n−M)} = conj(p)·e^{−jω₀M}; p kept for later.
 			out[i] = complex64(p)
 			p *= f.step
 		}
 		f.p = p
 		f.n = n0 + int64(c)
-		ms, mc := math.Sincos(f.w0 * float64(f.m))
+		ms, mc := math.Sincos(-f.w0 * float64(f.m))
 		back := complex64(complex(mc, ms))
 		m := f.m
 		h := f.h
