@@ -9,7 +9,7 @@ import (
 
 // DefaultAnalyticTaps is the Hilbert filter length used by Open for real
 // recordings. With the Blackman–Nuttall window the image of a real tone is
-// more than 80 dB down from about 0.003·fs to 0.497·fs (see
+// more than 80 dB down from 0.001·fs to 0.499·fs (over 110 dB measured) (see
 // TestAnalyticImage).
 const DefaultAnalyticTaps = 4095
 

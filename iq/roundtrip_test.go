@@ -39,6 +39,8 @@ func (m *memFile) Seek(off int64, whence int) (int64, error) {
 	return m.pos, nil
 }
 
+func newRng() *rand.Rand { return rand.New(rand.NewPCG(1, 1)) }
+
 func randomIQ(rng *rand.Rand, n int) []complex64 {
 	x := make([]complex64, n)
 	for i := range x {
@@ -151,3 +153,5 @@ func TestRealToAnalyticQuick(t *testing.T) {
 		}
 	}
 }
+
+func bytesReader(b []byte) io.Reader { return bytes.NewReader(b) }

@@ -133,10 +133,10 @@ func jsonError(name string, data []byte, err error) error {
 	var te *json.UnmarshalTypeError
 	switch {
 	case errors.As(err, &se):
-		line, col := lineCol(data, se.Offset)
+		line, col := lineCol(data, se.Offset-1) // Offset counts the bad byte
 		return formatErr(name, -1, "invalid JSON at line %d, column %d: %v", line, col, se)
 	case errors.As(err, &te):
-		line, col := lineCol(data, te.Offset)
+		line, col := lineCol(data, te.Offset-1)
 		return formatErr(name, -1, "line %d, column %d: %q should be %v, not a JSON %s", line, col, te.Field, te.Type, te.Value)
 	}
 	return formatErr(name, -1, "invalid JSON: %v", err)

@@ -97,11 +97,11 @@ var _ Reader = (*Source)(nil)
 // frequency (SigMF metadata takes precedence). Errors name the file.
 func Open(path string, opt Options) (*Source, error) {
 	if path == "-" {
-		if opt.Stdin == nil {
-			return nil, errors.New("standard input: not available")
-		}
 		if opt.Format == "" {
 			return nil, errors.New("standard input: give the sample format (--format)")
+		}
+		if opt.Stdin == nil {
+			return nil, errors.New("standard input: not available")
 		}
 		s, err := newRawSource("standard input", opt.Stdin, opt, -1)
 		if err != nil {

@@ -1,0 +1,106 @@
+package iq
+
+import (
+	"bytes"
+	"fmt"
+	"io"
+	"testing"
+)
+
+// BenchmarkDecode measures decoding each datatype into complex64 from
+// memory (b.SetBytes counts the file bytes; samples/s = MB/s ÷ sample size).
+func BenchmarkDecode(b *testing.B) {
+	const n = 16384
+	for _, dt := range []Datatype{CU8, CI8, CI16, CF32} {
+		src := make([]byte, n*dt.SampleSize())
+		for i := range src {
+			src[i] = byte(i * 7)
+		}
+		dst := make([]complex64, n)
+		b.Run(string(dt), func(b *testing.B) {
+			b.SetBytes(int64(len(src)))
+			b.ReportAllocs()
+			for b.Loop() {
+				decodeComplex(dt, dst, src)
+			}
+			b.ReportMetric(float64(n)*float64(b.N)/b.Elapsed().Seconds()/1e6, "MS/s")
+		})
+	}
+}
+
+// BenchmarkSource measures the whole read path (Source.Read from an
+// in-memory stream), including the analytic conversion of real formats.
+func BenchmarkSource(b *testing.B) {
+	const n = 1 << 18
+	for _, dt := range Datatypes {
+		data := make([]byte, n*dt.SampleSize())
+		for i := range data {
+			data[i] = byte(i*13) & 0x3f
+		}
+		b.Run(string(dt), func(b *testing.B) {
+			b.SetBytes(int64(len(data)))
+			b.ReportAllocs()
+			buf := make([]complex64, 8192)
+			r := bytes.NewReader(data)
+			for b.Loop() {
+				r.Reset(data)
+				s, _ := Open("-", Options{Format: dt, Rate: 1e6, Stdin: r})
+				for {
+					if _, err := s.Read(buf); err == io.EOF {
+						break
+					}
+				}
+			}
+			b.ReportMetric(float64(n)*float64(b.N)/b.Elapsed().Seconds()/1e6, "MS/s")
+		})
+	}
+}
+
+func BenchmarkEncode(b *testing.B) {
+	const n = 16384
+	src := randomIQ(newRng(), n)
+	for _, dt := range []Datatype{CU8, CI8, CI16, CF32} {
+		dst := make([]byte, n*dt.SampleSize())
+		b.Run(string(dt), func(b *testing.B) {
+			b.SetBytes(int64(len(dst)))
+			b.ReportAllocs()
+			for b.Loop() {
+				encodeComplex(dt, dst, src)
+			}
+			b.ReportMetric(float64(n)*float64(b.N)/b.Elapsed().Seconds()/1e6, "MS/s")
+		})
+	}
+}
+
+func BenchmarkStatsAndCorrector(b *testing.B) {
+	x := randomIQ(newRng(), 16384)
+	y := make([]complex64, len(x))
+	b.Run("stats", func(b *testing.B) {
+		b.SetBytes(int64(8 * len(x)))
+		b.ReportAllocs()
+		var st Stats
+		for b.Loop() {
+			st.Add(x)
+		}
+	})
+	b.Run("corrector", func(b *testing.B) {
+		c := NewCorrector(0.01, ImbalanceOf(1.02, 2))
+		b.SetBytes(int64(8 * len(x)))
+		b.ReportAllocs()
+		for b.Loop() {
+			c.Process(y, x)
+		}
+	})
+	for _, taps := range []int{255, DefaultAnalyticTaps} {
+		b.Run(fmt.Sprintf("analytic-%d", taps), func(b *testing.B) {
+			a := NewAnalytic(taps)
+			in := make([]float32, len(x))
+			b.SetBytes(int64(4 * len(in)))
+			b.ReportAllocs()
+			for b.Loop() {
+				a.Process(y, in)
+			}
+			b.ReportMetric(float64(len(in))*float64(b.N)/b.Elapsed().Seconds()/1e6, "MS/s")
+		})
+	}
+}

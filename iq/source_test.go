@@ -1,0 +1,99 @@
+package iq
+
+import (
+	"errors"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// TestOpenBad checks the bad inputs of the issue: each is a one-line
+// error naming the file and what is wrong.
+func TestOpenBad(t *testing.T) {
+	dir := t.TempDir()
+	write := func(name string, b []byte) string {
+		p := filepath.Join(dir, name)
+		if err := os.WriteFile(p, b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	cases := []struct {
+		path string
+		opt  Options
+		want string
+	}{
+		{filepath.Join(dir, "missing.cf32"), Options{Rate: 1}, "no such file"},
+		{write("empty.cu8", nil), Options{Rate: 1}, "empty file"},
+		{write("odd.cs16", make([]byte, 10)), Options{Rate: 1}, "size 10 bytes is not a whole number of 4-byte ci16_le samples (2 bytes left over)"},
+		{write("norate.cu8", make([]byte, 10)), Options{}, "give --rate"},
+		{write("what.bin", make([]byte, 10)), Options{Rate: 1}, "unknown extension"},
+		{write("meta-only.sigmf-meta", []byte(`{"global":{"core:datatype":"cu8","core:sample_rate":1}}`)), Options{}, "meta-only.sigmf-data: no such file"},
+		{write("cut.sigmf-meta", []byte(`{"global":{"core:datatype":"cf32_le","core:sample_rate":1}}`)), Options{}, "not a whole number of 8-byte"},
+		{"-", Options{Rate: 1}, "--format"},
+	}
+	write("cut.sigmf-data", make([]byte, 12))
+	for _, c := range cases {
+		_, err := Open(c.path, c.opt)
+		if err == nil {
+			t.Errorf("%s: accepted", c.path)
+			continue
+		}
+		if msg := err.Error(); !strings.Contains(msg, c.want) || strings.Contains(msg, "\n") {
+			t.Errorf("%s: error %q, want one line containing %q", c.path, msg, c.want)
+		}
+	}
+}
+
+// TestStdinPartialSample: whole samples are delivered, then a FormatError
+// for the partial one.
+func TestStdinPartialSample(t *testing.T) {
+	s, err := Open("-", Options{Format: CI16, Rate: 1, Stdin: bytesReader(make([]byte, 4*3+3))})
+	if err != nil {
+		t.Fatal(err)
+	}
+	buf := make([]complex64, 10)
+	n, err := s.Read(buf)
+	if n != 3 || err != nil {
+		t.Fatalf("first read %d, %v; want 3, nil", n, err)
+	}
+	_, err = s.Read(buf)
+	var fe *FormatError
+	if !errors.As(err, &fe) || !strings.Contains(err.Error(), "inside a sample") {
+		t.Fatalf("second read error %v, want a FormatError about a partial sample", err)
+	}
+}
+
+// TestNonFiniteCounted: NaN and Inf in a float capture are delivered as 0
+// and counted.
+func TestNonFiniteCounted(t *testing.T) {
+	p := filepath.Join(t.TempDir(), "nan.cf32")
+	inf := float32(math.Inf(1))
+	os.WriteFile(p, lef32(float32(math.NaN()), 0.5, inf, -inf, 0.25, 0.25), 0o644)
+	s, err := Open(p, Options{Rate: 1000})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer s.Close()
+	y := readAll(t, s)
+	if len(y) != 3 || y[0] != complex(0, 0.5) || y[1] != 0 || y[2] != complex(0.25, 0.25) || s.NonFinite() != 3 {
+		t.Errorf("got %v, %d non-finite; want [(0+0.5i) 0 (0.25+0.25i)], 3", y, s.NonFinite())
+	}
+}
+
+// TestSourceReadAllocs: Read does not allocate in the steady state.
+func TestSourceReadAllocs(t *testing.T) {
+	p := filepath.Join(t.TempDir(), "big.cu8")
+	os.WriteFile(p, make([]byte, 1<<22), 0o644)
+	s, err := Open(p, Options{Rate: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer s.Close()
+	buf := make([]complex64, 4096)
+	if a := testing.AllocsPerRun(100, func() { s.Read(buf) }); a != 0 {
+		t.Errorf("Read allocates %v times per call", a)
+	}
+}
