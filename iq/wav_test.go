@@ -183,4 +183,3 @@ func TestWAVWriterErrors(t *testing.T) {
 		t.Error("mp3 container accepted")
 	}
 }
-
