@@ -317,7 +317,7 @@ func bandMeta(t samples.BandTruth) iq.Meta {
 
 func benchMeta(t samples.BenchTruth) iq.Meta {
 	return iq.Meta{Datatype: iq.CF32, Rate: t.RateHz, Center: t.CenterHz, HasCenter: true,
-		Samples: int64(math.Round(samples.DefaultBenchConfig().Seconds * t.RateHz)),
+		Samples:     int64(math.Round(samples.DefaultBenchConfig().Seconds * t.RateHz)),
 		Description: "ssbkit demo: bench test of a transmitter, two tones, upper sideband",
 		Annotations: []iq.Annotation{{
 			FreqLowerEdge: t.CenterHz + t.CarrierOffsetHz + t.BandHz[0],
