@@ -28,6 +28,9 @@ import (
 // for short designs; 64 brings them within about 4e-7.
 const remezDensity = 64
 
+// remezCoarse is the density of the first, coarse exchange.
+const remezCoarse = 8
+
 // errRemez reports a failed exchange (not expected for valid specs).
 var errRemez = errors.New("equiripple design did not converge")
 
@@ -46,30 +49,25 @@ func remezHilbert(n int, fe, rate float64) (h []float64, delta float64, err erro
 	// interval [cos 2θmax, 1], so it is dense where a polynomial's
 	// extrema cluster, and the initial extremal set is the Chebyshev
 	// extrema φ = πi/K, a good guess (an even spread in θ stalls beyond
-	// about 100 taps).
-	ng := remezDensity*k + 1
+	// about 100 taps). The exchange first converges on a coarse grid, then
+	// on the fine one, whose points include the coarse ones.
 	xlo := math.Cos(2 * tmax)
 	c, r := (1+xlo)/2, (1-xlo)/2
-	gx := make([]float64, ng) // x = cos 2θ
-	gd := make([]float64, ng) // desired 1/cos θ
-	gw := make([]float64, ng) // weight cos θ
-	for i := range gx {
-		x := c + r*math.Cos(math.Pi*float64(i)/float64(ng-1))
-		gx[i] = x
-		gw[i] = math.Sqrt((1 + x) / 2) // cos θ
-		gd[i] = 1 / gw[i]
-	}
-	ext := make([]int, k+1)
-	for i := range ext {
-		ext[i] = i * remezDensity
-	}
+	ng := remezDensity*k + 1
 	var (
+		gx  = make([]float64, ng) // x = cos 2θ
+		gd  = make([]float64, ng) // desired 1/cos θ
+		gw  = make([]float64, ng) // weight cos θ
+		ext = make([]int, k+1)
 		xs  = make([]float64, k+1)
 		ys  = make([]float64, k+1)
 		bw  = make([]float64, k+1)
 		e   = make([]float64, ng)
 		cur = make([]int, 0, ng)
 	)
+	for i := range ext {
+		ext[i] = i * remezCoarse
+	}
 	interp := func(x float64) float64 {
 		var num, den float64
 		for i := 0; i < k; i++ {
@@ -91,68 +89,85 @@ func remezHilbert(n int, fe, rate float64) (h []float64, delta float64, err erro
 		bys       = make([]float64, k+1)
 		bbw       = make([]float64, k+1)
 	)
-	for iter := 0; iter < 100; iter++ {
-		for i, g := range ext {
-			xs[i] = gx[g]
-		}
-		gam := baryWeights(xs)
-		var num, den float64
-		for i, g := range ext {
-			num += gam[i] * gd[g]
-			s := 1.0
-			if i%2 == 1 {
-				s = -1
-			}
-			den += s * gam[i] / gw[g]
-		}
-		delta = num / den
-		for i, g := range ext {
-			s := 1.0
-			if i%2 == 1 {
-				s = -1
-			}
-			ys[i] = gd[g] - s*delta/gw[g]
-		}
-		// Weights of the K-point interpolant: drop the last point.
-		for i := 0; i < k; i++ {
-			bw[i] = gam[i] * (xs[i] - xs[k])
-		}
-		emax = 0
+	for stage, dens := range []int{remezCoarse, remezDensity} {
+		ng := dens*k + 1
+		gx, gd, gw, e := gx[:ng], gd[:ng], gw[:ng], e[:ng]
 		for i := range gx {
-			e[i] = gw[i] * (gd[i] - interp(gx[i]))
-			emax = math.Max(emax, math.Abs(e[i]))
+			x := c + r*math.Cos(math.Pi*float64(i)/float64(ng-1))
+			gx[i] = x
+			gw[i] = math.Sqrt((1 + x) / 2) // cos θ
+			gd[i] = 1 / gw[i]
 		}
-		if emax < best {
-			best = emax
-			copy(bxs, xs)
-			copy(bys, ys)
-			copy(bbw, bw)
-		}
-		if emax-math.Abs(delta) <= 1e-12*math.Abs(delta)+1e-300 {
-			converged = true
-			break
-		}
-		cur = extrema(cur[:0], e)
-		if len(cur) < k+1 {
-			break
-		}
-		for len(cur) > k+1 {
-			if math.Abs(e[cur[0]]) < math.Abs(e[cur[len(cur)-1]]) {
-				cur = cur[1:]
-			} else {
-				cur = cur[:len(cur)-1]
+		if stage > 0 {
+			for i := range ext {
+				ext[i] *= remezDensity / remezCoarse
 			}
 		}
-		same := true
-		for i := range ext {
-			if ext[i] != cur[i] {
-				same = false
+		converged = false
+		best = math.Inf(1)
+		for iter := 0; iter < 100; iter++ {
+			for i, g := range ext {
+				xs[i] = gx[g]
 			}
-			ext[i] = cur[i]
-		}
-		if same {
-			converged = true
-			break
+			gam := baryWeights(xs)
+			var num, den float64
+			for i, g := range ext {
+				num += gam[i] * gd[g]
+				s := 1.0
+				if i%2 == 1 {
+					s = -1
+				}
+				den += s * gam[i] / gw[g]
+			}
+			delta = num / den
+			for i, g := range ext {
+				s := 1.0
+				if i%2 == 1 {
+					s = -1
+				}
+				ys[i] = gd[g] - s*delta/gw[g]
+			}
+			// Weights of the K-point interpolant: drop the last point.
+			for i := 0; i < k; i++ {
+				bw[i] = gam[i] * (xs[i] - xs[k])
+			}
+			emax = 0
+			for i := range gx {
+				e[i] = gw[i] * (gd[i] - interp(gx[i]))
+				emax = math.Max(emax, math.Abs(e[i]))
+			}
+			if emax < best {
+				best = emax
+				copy(bxs, xs)
+				copy(bys, ys)
+				copy(bbw, bw)
+			}
+			if emax-math.Abs(delta) <= 1e-12*math.Abs(delta)+1e-300 {
+				converged = true
+				break
+			}
+			cur = extrema(cur[:0], e)
+			if len(cur) < k+1 {
+				break
+			}
+			for len(cur) > k+1 {
+				if math.Abs(e[cur[0]]) < math.Abs(e[cur[len(cur)-1]]) {
+					cur = cur[1:]
+				} else {
+					cur = cur[:len(cur)-1]
+				}
+			}
+			same := true
+			for i := range ext {
+				if ext[i] != cur[i] {
+					same = false
+				}
+				ext[i] = cur[i]
+			}
+			if same {
+				converged = true
+				break
+			}
 		}
 	}
 	// Past about 10⁻¹⁰ the error is float64 rounding and the exchange
@@ -256,23 +271,37 @@ func newEquiripple(s Spec) (*firSplitter, error) {
 	fe := edge(s)
 	h, d, err := remezHilbert(s.Taps, fe, s.Rate)
 	if err != nil {
-		return nil, err
+		d = 0 // the exchange met float64 rounding: far below the floor
 	}
 	if d < remezFloor {
-		lo, hi := 0.0, fe
-		for range 20 {
-			mid := (lo + hi) / 2
-			h2, d2, err := remezHilbert(s.Taps, mid, s.Rate)
-			if err != nil || d2 < remezFloor {
-				hi = mid
+		// ln δ falls about linearly as the edge rises: secant steps from
+		// the requested edge towards δ = 2·remezFloor, keeping the best
+		// design at or above the floor.
+		const target = 2 * remezFloor
+		f0, g0 := fe, math.Log(math.Max(d, 1e-13)/target)
+		// First guess from Kaiser's length formula (O&S 3rd ed., eq. 7.63):
+		// transition 2ωe = (A − 8)/(2.285(N−1)) for A = 20·log10(2/target).
+		f1 := (20*math.Log10(2/target) - 8) / (2.285 * float64(s.Taps-1)) / 2 / (2 * math.Pi) * s.Rate
+		f1 = math.Min(f1, fe/2)
+		var found bool
+		for range 12 {
+			h1, d1, err := remezHilbert(s.Taps, f1, s.Rate)
+			if err != nil {
+				f1 /= 2
 				continue
 			}
-			lo, h = mid, h2
-			if d2 < 2*remezFloor {
-				break
+			if d1 >= remezFloor && (!found || d1 < 4*remezFloor) {
+				h, found = h1, true
+				if d1 < 4*remezFloor {
+					break
+				}
 			}
+			g1 := math.Log(d1 / target)
+			next := f1 - g1*(f1-f0)/(g1-g0)
+			f0, g0 = f1, g1
+			f1 = math.Min(math.Max(next, f1/4), fe)
 		}
-		if lo == 0 {
+		if !found {
 			return nil, fmt.Errorf("%w (%d taps)", errRemez, s.Taps)
 		}
 	}

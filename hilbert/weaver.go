@@ -55,9 +55,14 @@ func (w *weaverSplitter) MACs() float64 { return float64(2*(w.m+1) + 10) }
 func (w *weaverSplitter) Response(f float64) complex128 {
 	om := 2 * math.Pi * f / w.spec.Rate
 	nu := om - w.w0
+	// A(ν) = h[M] + 2·Σ_{k≥1} h[M−k]·cos(kν), cos(kν) by the recurrence
+	// cos((k+1)ν) = 2cos ν·cos(kν) − cos((k−1)ν).
+	c1 := math.Cos(nu)
 	a := w.h[w.m]
-	for k := 0; k < w.m; k++ {
-		a += 2 * w.h[k] * math.Cos(nu*float64(k-w.m))
+	prev, cur := 1.0, c1
+	for k := 1; k <= w.m; k++ {
+		a += 2 * w.h[w.m-k] * cur
+		prev, cur = cur, 2*c1*cur-prev
 	}
 	s, c := math.Sincos(-om * float64(w.m))
 	return complex(a*c, a*s)
