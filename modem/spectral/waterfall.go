@@ -111,6 +111,11 @@ func (w *Waterfall) Rows() [][]float64 {
 	return out
 }
 
+// LastRowSeconds returns the stream time the last row spans so far.
+func (w *Waterfall) LastRowSeconds() float64 {
+	return float64(w.cur*w.acc.hop) / w.acc.rate
+}
+
 // RowSeconds returns the stream time one full row spans.
 func (w *Waterfall) RowSeconds() float64 {
 	return float64(w.perRow*w.acc.hop) / w.acc.rate
