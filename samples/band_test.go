@@ -81,3 +81,33 @@ func TestBandBlockwise(t *testing.T) {
 		}
 	}
 }
+
+func BenchmarkBand(b *testing.B) {
+	cfg := DefaultBandConfig()
+	cfg.Seconds = 3600
+	s, err := NewBand(cfg)
+	if err != nil {
+		b.Fatal(err)
+	}
+	buf := make([]complex64, 16384)
+	b.SetBytes(8 * int64(len(buf)))
+	b.ReportAllocs()
+	for b.Loop() {
+		s.Read(buf)
+	}
+}
+
+func BenchmarkBench(b *testing.B) {
+	cfg := DefaultBenchConfig()
+	cfg.Seconds = 3600
+	s, err := NewBench(cfg)
+	if err != nil {
+		b.Fatal(err)
+	}
+	buf := make([]complex64, 16384)
+	b.SetBytes(8 * int64(len(buf)))
+	b.ReportAllocs()
+	for b.Loop() {
+		s.Read(buf)
+	}
+}
