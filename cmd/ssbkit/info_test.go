@@ -72,7 +72,7 @@ func TestInfoLevels(t *testing.T) {
 		}
 	}
 	a := 63.5 / 127.5
-	wantPeak := 10 * math.Log10(2)                 // |1+j|² = 2
+	wantPeak := 10 * math.Log10(2)                  // |1+j|² = 2
 	wantRMS := 10 * math.Log10((2+2+2*a*a+2*a*a)/4) // mean |x|²
 	if m["format"] != "cu8" || m["rate_hz"] != 2.4e6 || m["center_hz"] != 7.1e6 || m["samples"] != 4.0 || m["clipped"] != 2.0 {
 		t.Errorf("report %v", m)
