@@ -1,0 +1,301 @@
+package modem
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"runtime"
+	"sync"
+	"sync/atomic"
+)
+
+// SampleReader is the source of a Receiver: Read fills dst with the next
+// capture samples and returns io.EOF after the last (iq.Source is one).
+type SampleReader interface {
+	Read(dst []complex64) (int, error)
+}
+
+// Receiver decodes several channels of one capture in one pass. The
+// capture is read once, in blocks, by a reader goroutine; the first stage
+// of every channel (the costly part, at the capture rate) runs on a pool
+// of worker goroutines, block by block in any order (ShiftDecimator.Block
+// needs only the block and the samples before it); the rest of each chain
+// runs on a goroutine per channel, in block order. Memory is bounded by
+// the blocks in flight, whatever the capture's length.
+type Receiver struct {
+	chans []*Channel
+	// Workers is the number of first-stage goroutines; 0 means
+	// runtime.GOMAXPROCS(0).
+	Workers int
+	// Block is the number of capture samples per block; 0 means 65536.
+	Block int
+	// Progress, when set, is called from the reader goroutine with the
+	// number of samples just read.
+	Progress func(n int)
+}
+
+// NewReceiver returns a receiver for the channels cfgs.
+func NewReceiver(cfgs []RxConfig) (*Receiver, error) {
+	if len(cfgs) == 0 {
+		return nil, errors.New("no channel to decode")
+	}
+	r := &Receiver{}
+	for _, cfg := range cfgs {
+		c, err := NewChannel(cfg)
+		if err != nil {
+			return nil, err
+		}
+		r.chans = append(r.chans, c)
+	}
+	return r, nil
+}
+
+// Channels returns the receive chains, in the order of the configurations.
+func (r *Receiver) Channels() []*Channel { return r.chans }
+
+// rxJob is one block of capture samples with the history the first stages
+// need before it.
+type rxJob struct {
+	win   []complex64 // hist samples before a, then n samples from a
+	raw   []byte      // RunRaw: the encoded samples of win
+	from  int         // RunRaw: win[from:to] is decoded from raw, the rest is 0
+	to    int
+	a     int64
+	n     int
+	outs  [][]complex64 // first-stage outputs per channel
+	done  chan struct{}
+	refs  atomic.Int32
+	last  bool  // the block after which no samples follow
+	total int64 // with last: the number of capture samples
+}
+
+// Run decodes src to the end. sinks[i] receives the audio of channel i,
+// delay-compensated: audio sample k is the capture at time k/AudioRate,
+// and the audio lasts as long as the capture (round(N·AudioRate/Rate)
+// samples for N capture samples). The slice passed to a sink is reused
+// after it returns. The first error of the reader or a sink stops Run and
+// is returned.
+func (r *Receiver) Run(src SampleReader, sinks []func([]float32) error) error {
+	return r.run(src, nil, 0, nil, sinks)
+}
+
+// RunRaw is Run for a capture of encoded samples of size bytes each, which
+// decode turns into complex samples: the decoding then runs on the worker
+// goroutines rather than on the reader's. decode(dst, b) decodes
+// len(dst) samples from b.
+func (r *Receiver) RunRaw(src io.Reader, size int, decode func(dst []complex64, b []byte), sinks []func([]float32) error) error {
+	if size < 1 || decode == nil {
+		panic("modem: RunRaw needs a sample size and a decoder")
+	}
+	return r.run(nil, src, size, decode, sinks)
+}
+
+func (r *Receiver) run(src SampleReader, raw io.Reader, ss int, decode func([]complex64, []byte), sinks []func([]float32) error) error {
+	if len(sinks) != len(r.chans) {
+		panic("modem: one sink per channel")
+	}
+	workers := r.Workers
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	block := r.Block
+	if block <= 0 {
+		block = 1 << 16
+	}
+	hist := 0
+	var flushIn int64 // capture samples of zeros that push the delayed tail out
+	for _, c := range r.chans {
+		hist = max(hist, c.first.l-1)
+		fl := int64(math.Ceil(float64(c.delay+1)*c.cfg.Rate/c.cfg.AudioRate)) + int64(c.plan.Decim)*2
+		flushIn = max(flushIn, fl)
+	}
+	nch := len(r.chans)
+	inflight := 2*workers + 4
+	free := make(chan *rxJob, inflight)
+	for range inflight {
+		j := &rxJob{win: make([]complex64, hist+block), outs: make([][]complex64, nch)}
+		if raw != nil {
+			j.raw = make([]byte, (hist+block)*ss)
+		}
+		for i, c := range r.chans {
+			j.outs[i] = make([]complex64, 0, c.first.MaxOut(block))
+		}
+		free <- j
+	}
+	work := make(chan *rxJob, inflight)
+	order := make(chan *rxJob, inflight)
+	stop := make(chan struct{})
+	var errOnce sync.Once
+	var firstErr error
+	fail := func(err error) {
+		errOnce.Do(func() { firstErr = err; close(stop) })
+	}
+
+	// Reader: fills blocks, copying the last hist samples of the previous
+	// block before each, then zeros for the flush.
+	go func() {
+		defer close(work)
+		defer close(order)
+		prev := make([]complex64, hist)
+		var a int64
+		var total int64 = -1
+		var flushed int64
+		zeroFrom := -1 // RunRaw: start of the zeros in the previous window (−1: none)
+		prevN := 0
+		prevRaw := make([]byte, hist*ss)
+		for {
+			var j *rxJob
+			select {
+			case j = <-free:
+			case <-stop:
+				return
+			}
+			n := 0
+			if raw != nil {
+				copy(j.raw, prevRaw)
+			}
+			if total < 0 {
+				var k int
+				var err error
+				if raw != nil {
+					k, err = io.ReadFull(raw, j.raw[hist*ss:(hist+block)*ss])
+					if err == io.ErrUnexpectedEOF {
+						err = nil
+						if k%ss != 0 {
+							err = fmt.Errorf("capture ends inside a sample (%d of %d bytes)", k%ss, ss)
+						}
+					}
+					k /= ss
+				} else {
+					copy(j.win, prev)
+					k, err = src.Read(j.win[hist : hist+block])
+				}
+				n = k
+				if err != nil && err != io.EOF {
+					fail(err)
+					return
+				}
+				if r.Progress != nil && k > 0 {
+					r.Progress(k)
+				}
+				if err == io.EOF || k == 0 {
+					total = a + int64(k)
+				}
+			} else if raw == nil {
+				copy(j.win, prev)
+			}
+			data := n
+			if total >= 0 {
+				// zeros after the end
+				m := min(int64(block-n), flushIn-flushed)
+				if raw == nil {
+					clear(j.win[hist+n : hist+n+int(m)])
+				}
+				n += int(m)
+				flushed += m
+			}
+			if raw != nil {
+				j.from, j.to = 0, hist+data
+				if a == 0 {
+					j.from = hist
+				}
+				if zeroFrom >= 0 {
+					j.to = min(j.to, max(0, zeroFrom-prevN))
+				}
+				if j.to < hist+n {
+					zeroFrom = j.to
+				} else {
+					zeroFrom = -1
+				}
+				prevN = n
+				copy(prevRaw, j.raw[n*ss:(n+hist)*ss])
+			} else {
+				copy(prev, j.win[n:n+hist])
+			}
+			j.a, j.n = a, n
+			j.last = total >= 0 && flushed >= flushIn
+			j.total = total
+			j.done = make(chan struct{})
+			j.refs.Store(int32(nch))
+			a += int64(n)
+			select {
+			case work <- j:
+			case <-stop:
+				return
+			}
+			order <- j
+			if j.last {
+				return
+			}
+		}
+	}()
+
+	// Workers: the first stage of every channel.
+	for range workers {
+		go func() {
+			for j := range work {
+				if raw != nil {
+					clear(j.win[:j.from])
+					decode(j.win[j.from:j.to], j.raw[j.from*ss:j.to*ss])
+					clear(j.win[j.to : hist+j.n])
+				}
+				for i, c := range r.chans {
+					l := c.first.l
+					j.outs[i] = c.first.Block(j.outs[i][:0], j.win[hist-(l-1):hist+j.n], j.a)
+				}
+				close(j.done)
+			}
+		}()
+	}
+
+	// Channel goroutines: the rest of each chain, in order.
+	feeds := make([]chan *rxJob, nch)
+	var wg sync.WaitGroup
+	for i, c := range r.chans {
+		feeds[i] = make(chan *rxJob, inflight)
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			var audio []float32
+			skip := c.delay
+			var emitted int64
+			failed := false
+			for j := range feeds[i] {
+				if !failed {
+					audio = c.ProcessFirst(audio, j.outs[i])
+					out := audio
+					d := min(skip, len(out))
+					out, skip = out[d:], skip-d
+					if j.total >= 0 {
+						want := int64(math.Round(float64(j.total) * c.cfg.AudioRate / c.cfg.Rate))
+						out = out[:max(0, min(int64(len(out)), want-emitted))]
+					}
+					emitted += int64(len(out))
+					if len(out) > 0 {
+						if err := sinks[i](out); err != nil {
+							fail(err)
+							failed = true
+						}
+					}
+				}
+				if j.refs.Add(-1) == 0 {
+					free <- j
+				}
+			}
+		}()
+	}
+
+	// Sequencer: hand the blocks on in order once their first stages ran.
+	for j := range order {
+		<-j.done
+		for i := range feeds {
+			feeds[i] <- j
+		}
+	}
+	for i := range feeds {
+		close(feeds[i])
+	}
+	wg.Wait()
+	return firstErr
+}
