@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bytes"
 	"encoding/json"
 	"math"
 	"os"
@@ -52,12 +53,20 @@ func TestDemo(t *testing.T) {
 		t.Skip("the demo takes a few seconds")
 	}
 	dir := filepath.Join(t.TempDir(), "demo")
-	code, stdout, stderr := runCmd(t, "demo", "-o", dir)
+	// As on a terminal: one progress line per step on stderr.
+	var so, se bytes.Buffer
+	code := run([]string{"demo", "-o", dir}, &env{stdin: strings.NewReader(""), stdout: &so, stderr: &se, stderrTTY: true})
+	stdout, stderr := so.String(), se.String()
 	if code != exitOK {
 		t.Fatalf("demo exit %d, stderr %q", code, stderr)
 	}
 	if !strings.Contains(stdout, "summary.md") {
 		t.Errorf("stdout %q does not point at summary.md", stdout)
+	}
+	for _, step := range []string{"[1/9] scenario", "[2/9] info", "[3/9] spectrum", "[9/9] summary"} {
+		if !strings.Contains(stderr, step) {
+			t.Errorf("progress on stderr lacks %q:\n%s", step, stderr)
+		}
 	}
 	b, err := os.ReadFile(filepath.Join(dir, demoSummary))
 	if err != nil {
