@@ -7,7 +7,6 @@ import (
 	"math"
 	"math/rand/v2"
 
-	"ssbkit/hilbert"
 	"ssbkit/modem"
 )
 
@@ -165,9 +164,7 @@ type stationGen struct {
 	total float64 // samples in the capture, for the drift
 
 	voice *Voice
-	bp    *modem.RealFIR   // audio band-pass
-	split hilbert.Filter   // SSB: analytic audio
-	rs    *modem.Resampler // audio rate → capture rate
+	mod   *modem.Modulator // audio → complex baseband at the capture rate
 	osc   *modem.Oscillator
 	keyer *Keyer
 	amp   float64
@@ -202,31 +199,28 @@ func newStationGen(st Station, cfg BandConfig) (*stationGen, error) {
 		return nil, err
 	}
 	g.voice = v
-	g.bp = modem.NewRealFIR(modem.KaiserBandpass(bandLow, bandHigh, 200, audioRate, 60))
+	tc := modem.TxConfig{Mode: st.Mode, BandLow: bandLow, BandHigh: bandHigh, AudioRate: audioRate, OutRate: cfg.Rate}
 	switch st.Mode {
 	case "usb", "lsb":
-		sp, err := hilbert.New(hilbert.Spec{Design: "kaiser", Taps: 127, Rate: audioRate, Low: bandLow, High: bandHigh})
-		if err != nil {
-			return nil, err
-		}
-		g.split = sp.NewFilter()
-		// a real tone a·cos becomes a·e^{jωn}: the power doubles, so the
-		// speech RMS v.Level becomes v.Level·√2.
-		g.amp = level / (v.Config().Level * math.Sqrt2)
+		// Unity convention of the modulator: a real tone a·cos becomes
+		// a·e^{jωn}, so the power doubles and the speech RMS v.Level
+		// becomes v.Level·√2.
+		tc.Gain = level / (v.Config().Level * math.Sqrt2)
 	case "am":
-		// carrier of RMS level; the speech, limited to ±0.9, modulates to
-		// depth at its limit.
-		g.amp = level
+		// The voice is limited to ±limit: that is the audio peak the
+		// depth refers to, and the carrier, Gain·Peak/Depth, is level.
+		tc.Depth = st.depth
+		tc.Levels = modem.AudioLevels{Peak: limit, Max: limit, Min: -limit, EnvelopePeak: limit}
+		tc.Gain = level * st.depth / limit
 	default:
 		return nil, fmt.Errorf("unknown mode %q", st.Mode)
 	}
-	g.rs, err = modem.NewResampler(audioRate, cfg.Rate, 80)
+	g.mod, err = modem.NewModulator(tc)
 	if err != nil {
 		return nil, err
 	}
 	g.audio = make([]float32, chunk)
-	g.base = make([]complex64, chunk)
-	g.up = make([]complex64, g.rs.MaxOut(chunk))
+	g.up = make([]complex64, g.mod.MaxOut(chunk))
 	return g, nil
 }
 
@@ -246,24 +240,7 @@ func (g *stationGen) produce() {
 			out[i] = complex(float32(a), 0)
 		}
 	} else {
-		a := g.bp.Process(g.audio, g.voice.Generate(g.audio))
-		switch g.st.Mode {
-		case "usb", "lsb":
-			g.split.Process(g.base, a)
-			s := float32(g.amp)
-			for i, v := range g.base {
-				if g.st.Mode == "lsb" {
-					v = complex(real(v), -imag(v))
-				}
-				g.base[i] = complex(s*real(v), s*imag(v))
-			}
-		case "am":
-			m := g.st.depth / limit
-			for i, v := range a {
-				g.base[i] = complex(float32(g.amp*(1+m*float64(v))), 0)
-			}
-		}
-		out = g.rs.Process(g.up, g.base)
+		out = g.mod.Process(g.up, g.voice.Generate(g.audio))
 	}
 	out = g.osc.Mix(out, out)
 	g.fifo = append(g.fifo, out...)
