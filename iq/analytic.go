@@ -21,8 +21,9 @@ const DefaultAnalyticTaps = 4095
 //
 //	h[k] = 2/(πk) for odd k, 0 for even k   (k = −D … D, D = (taps−1)/2)
 //
-// (Oppenheim & Schafer, Discrete-Time Signal Processing, 3rd ed., eq. 12.67)
-// truncated by a Blackman–Nuttall window from gonum's dsp/window. The real
+// (the ideal discrete Hilbert transformer, Oppenheim & Schafer,
+// Discrete-Time Signal Processing, 3rd ed., Sec. 12.4; equation number not
+// quoted, from memory) truncated by a Blackman–Nuttall window from gonum's dsp/window. The real
 // part is x delayed by D samples, exactly. The imaginary part is computed
 // by FFT overlap-save convolution (gonum's dsp/fourier real FFT), so the
 // cost per sample grows with log(taps), not taps; the overlap-save loop is

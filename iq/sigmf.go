@@ -112,6 +112,9 @@ func ReadSigMFMeta(r io.Reader, name string) (Meta, error) {
 		if a.SampleStart == nil {
 			return m, formatErr(name, -1, "annotations[%d] has no \"core:sample_start\"", i)
 		}
+		if *a.SampleStart < 0 || a.SampleCount != nil && *a.SampleCount < 0 {
+			return m, formatErr(name, -1, "annotations[%d] has a negative sample start or count", i)
+		}
 		an := Annotation{SampleStart: *a.SampleStart, Label: a.Label, Comment: a.Comment}
 		if a.SampleCount != nil {
 			an.SampleCount = *a.SampleCount

@@ -84,7 +84,6 @@ type Source struct {
 	err       error // sticky
 	clipped   int64
 	nonfinite int64
-	read      int64
 }
 
 var _ Reader = (*Source)(nil)
@@ -407,7 +406,6 @@ func (s *Source) readComplex(dst []complex64) (int, error) {
 	}
 	s.clipped += int64(c)
 	s.nonfinite += int64(nf)
-	s.read += int64(k)
 	return k, nil
 }
 
