@@ -167,7 +167,7 @@ func Analyze(s Splitter, low, high float64) Analysis {
 		panic("hilbert: Analyze band must satisfy 0 < low < high")
 	}
 	supp := func(f float64) float64 {
-		return suppressionAt(s, f)
+		return SuppressionAt(s, f)
 	}
 	var (
 		sum        float64
@@ -216,7 +216,9 @@ func Analyze(s Splitter, low, high float64) Analysis {
 	}
 }
 
-func suppressionAt(s Splitter, f float64) float64 {
+// SuppressionAt returns the suppression 20·log10(|H(f)|/|H(−f)|) in dB at
+// f Hz, capped at MaxSuppressionDB.
+func SuppressionAt(s Splitter, f float64) float64 {
 	return ratioDB(cmplxAbs(s.Response(f)), cmplxAbs(s.Response(-f)))
 }
 

@@ -225,7 +225,7 @@ func TestAnalyzeMinimumRefined(t *testing.T) {
 		a := Analyze(sp, 300, 2700)
 		fine := math.Inf(1)
 		for i := 0; i <= 100000; i++ {
-			fine = math.Min(fine, suppressionAt(sp, 300+2400*float64(i)/100000))
+			fine = math.Min(fine, SuppressionAt(sp, 300+2400*float64(i)/100000))
 		}
 		if a.SuppressionMinDB > fine+tolDB || a.SuppressionMinDB < fine-tolDB {
 			t.Errorf("%s: min %.4f dB, fine grid %.4f", s.Design, a.SuppressionMinDB, fine)
@@ -412,7 +412,7 @@ func TestFilterMatchesResponse(t *testing.T) {
 			}
 			sp := mustNew(t, s)
 			for _, f := range []float64{300, 1500, 2700} {
-				want := suppressionAt(sp, f)
+				want := SuppressionAt(sp, f)
 				got := MeasureDB(sp, f)
 				if want < 100 && math.Abs(got-want) > tolDB {
 					t.Errorf("%s %d/%d at %g Hz: measured %.2f dB, response %.2f dB", s.Design, s.Taps, s.Sections, f, got, want)

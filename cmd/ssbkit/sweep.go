@@ -1,7 +1,324 @@
 package main
 
-import "errors"
+import (
+	"encoding/csv"
+	"encoding/json"
+	"fmt"
+	"io"
+	"math"
+	"strconv"
+	"strings"
+	"text/tabwriter"
+
+	"ssbkit/hilbert"
+	"ssbkit/iq"
+)
+
+const sweepUsage = `ssbkit sweep [--designs LIST] [--taps START:STOP:STEP|N,N,…] [--sections START:STOP:STEP] [--rate HZ] [--band LOW:HIGH] [--verify] [--csv FILE] [--plot FILE.png] [--json] [-o PATH]`
+
+const sweepExamples = `Columns: minimum and mean opposite-sideband suppression over the band
+(20·log10 |H(f)|/|H(−f)| on a fine grid, minimum right to 0.05 dB),
+wanted-sideband ripple (peak to peak), delay, and cost in real
+multiply-adds per sample. Length is FIR taps, the Weaver low-pass taps,
+the FFT block size, or the number of all-pass sections (one multiply
+each; total order 2·sections+1). With --verify a tone at each band edge
+and the centre runs through the real streaming filter and the worst
+measured suppression is shown beside the prediction.
+
+Examples:
+  ssbkit sweep
+  ssbkit sweep --designs all --taps 7:255:8 --sections 1:10:1 --plot sweep.png
+  ssbkit sweep --designs kaiser,equiripple --taps 31,63,127 --rate 48k --band 200:3000 --json
+  ssbkit sweep --designs allpass --sections 2:8:1 --verify --csv allpass.csv`
+
+// sweepRow is one line of the sweep; the JSON keys are DESIGN.md's.
+type sweepRow struct {
+	Design            string   `json:"design"`
+	Length            int      `json:"length"`
+	SuppressionMinDB  float64  `json:"suppression_min_db"`
+	SuppressionMeanDB float64  `json:"suppression_mean_db"`
+	RippleDB          float64  `json:"ripple_db"`
+	DelaySamples      float64  `json:"delay_samples"`
+	DelayMS           float64  `json:"delay_ms"`
+	MACsPerSample     float64  `json:"macs_per_sample"`
+	MeasuredMinDB     *float64 `json:"measured_min_db,omitempty"`
+}
+
+type sweepJSON struct {
+	RateHz float64    `json:"rate_hz"`
+	BandHz [2]float64 `json:"band_hz"`
+	Rows   []sweepRow `json:"rows"`
+}
 
 func runSweep(e *env, args []string) error {
-	return errors.New("not built yet in this version")
+	fs := newFlagSet(e, "sweep", sweepUsage, sweepExamples)
+	out := fs.StringP("output", "o", "", "write the table (or JSON) here instead of standard output")
+	force := fs.Bool("force", false, "overwrite existing outputs")
+	designsS := fs.String("designs", "kaiser,equiripple,allpass", "comma list of designs, or all: "+strings.Join(hilbert.Designs, ", "))
+	tapsS := fs.String("taps", "7:255:8", "FIR taps, Weaver low-pass taps and FFT block sizes: START:STOP:STEP (STOP inclusive) or a comma list")
+	secS := fs.String("sections", "1:10:1", "all-pass sections: START:STOP:STEP or a comma list")
+	rateS := fs.String("rate", "8000", "sample rate in Hz")
+	bandS := fs.String("band", "300:2700", "audio band LOW:HIGH in Hz")
+	verify := fs.Bool("verify", false, "also measure each design with tones through its streaming filter")
+	csvTo := fs.String("csv", "", "also write the rows as CSV to this file")
+	plotTo := fs.String("plot", "", "draw suppression against length and against cost to this PNG")
+	asJSON := fs.Bool("json", false, "print one JSON object")
+	quiet := fs.BoolP("quiet", "q", false, "no progress bar")
+	if err := parseFlags(fs, args); err != nil {
+		return err
+	}
+	if fs.NArg() != 0 {
+		return usagef("sweep takes no arguments, got %q", fs.Arg(0))
+	}
+	designs, err := parseDesigns(*designsS)
+	if err != nil {
+		return err
+	}
+	taps, err := parseLengths("--taps", *tapsS)
+	if err != nil {
+		return err
+	}
+	sections, err := parseLengths("--sections", *secS)
+	if err != nil {
+		return err
+	}
+	rate, low, high, err := parseRateBand(*rateS, *bandS)
+	if err != nil {
+		return err
+	}
+	for _, o := range []string{*out, *csvTo, *plotTo} {
+		if o != "" && o != "-" {
+			if err := checkOutput(o, *force); err != nil {
+				return err
+			}
+		}
+	}
+
+	// Build every spec first so that a bad length is a usage error before
+	// any work.
+	var specs []hilbert.Spec
+	for _, d := range designs {
+		lens := taps
+		if d == "allpass" {
+			lens = sections
+		}
+		for _, n := range lens {
+			s := hilbert.Spec{Design: d, Taps: n, Sections: n, Rate: rate, Low: low, High: high}
+			if d == "fft" && n < hilbert.MinFFT {
+				if !*quiet {
+					fmt.Fprintf(e.stderr, "ssbkit: sweep: fft block size %d skipped (at least %d)\n", n, hilbert.MinFFT)
+				}
+				continue
+			}
+			specs = append(specs, s)
+		}
+	}
+	rows := make([]sweepRow, 0, len(specs))
+	bar := newProgress(e, *quiet || len(specs) < 50 && !*verify, "sweep", int64(len(specs)))
+	for _, s := range specs {
+		sp, err := hilbert.New(s)
+		if err != nil {
+			bar.Done()
+			return usagef("%s length %d: %v", s.Design, max(s.Taps, s.Sections), err)
+		}
+		a := hilbert.Analyze(sp, low, high)
+		r := sweepRow{
+			Design: s.Design, Length: s.Taps,
+			SuppressionMinDB: round(a.SuppressionMinDB, 2), SuppressionMeanDB: round(a.SuppressionMeanDB, 2),
+			RippleDB: round(a.RippleDB, 4), DelaySamples: round(a.DelaySamples, 3), DelayMS: round(a.DelayMS, 4),
+			MACsPerSample: round(a.MACsPerSample, 2),
+		}
+		if s.Design == "allpass" {
+			r.Length = s.Sections
+		}
+		if *verify {
+			m := measuredMin(sp, low, high)
+			r.MeasuredMinDB = &m
+		}
+		rows = append(rows, r)
+		bar.Add(1)
+	}
+	bar.Done()
+
+	if *csvTo != "" {
+		if err := writeOutputTo(e, *csvTo, *force, func(w io.Writer) error { return writeSweepCSV(w, rows, *verify) }); err != nil {
+			return err
+		}
+	}
+	if *plotTo != "" {
+		title := fmt.Sprintf("Opposite-sideband suppression, %s–%s Hz at %s Hz", fmtHz(low), fmtHz(high), fmtHz(rate))
+		if err := writeOutputTo(e, *plotTo, *force, func(w io.Writer) error { return writeSweepPNG(w, title, designs, rows) }); err != nil {
+			return err
+		}
+	}
+	return writeOutputTo(e, *out, *force, func(w io.Writer) error {
+		if *asJSON {
+			enc := json.NewEncoder(w)
+			enc.SetIndent("", "  ")
+			return enc.Encode(sweepJSON{RateHz: rate, BandHz: [2]float64{low, high}, Rows: rows})
+		}
+		return writeSweepText(w, rate, low, high, rows, *verify)
+	})
 }
+
+// measuredMin runs tones at the band edges and centre through the
+// streaming filter and returns the worst measured suppression in dB.
+func measuredMin(sp hilbert.Splitter, low, high float64) float64 {
+	m := math.Inf(1)
+	for _, f := range []float64{low, (low + high) / 2, high} {
+		m = math.Min(m, hilbert.MeasureDB(sp, f))
+	}
+	return round(m, 2)
+}
+
+// writeOutputTo writes through createOutput to path, or to standard output
+// for "" and "-".
+func writeOutputTo(e *env, path string, force bool, fill func(io.Writer) error) error {
+	if path == "" || path == "-" {
+		return fill(e.stdout)
+	}
+	f, err := createOutput(path, force)
+	if err != nil {
+		return err
+	}
+	defer f.Abort()
+	if err := fill(f); err != nil {
+		return fmt.Errorf("%s: %w", path, err)
+	}
+	return f.Commit()
+}
+
+func writeSweepText(w io.Writer, rate, low, high float64, rows []sweepRow, verify bool) error {
+	fmt.Fprintf(w, "Phase splitters at %s Hz over %s–%s Hz (suppression of the opposite sideband)\n\n", fmtHz(rate), fmtHz(low), fmtHz(high))
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	head := "design\tlength\tmin dB\tmean dB\tripple dB\tdelay\tdelay ms\tmult-adds/S\t"
+	if verify {
+		head += "measured min dB\t"
+	}
+	fmt.Fprintln(tw, head)
+	for _, r := range rows {
+		line := fmt.Sprintf("%s\t%d\t%.2f\t%.2f\t%.4f\t%.2f\t%.3f\t%.1f\t", r.Design, r.Length, r.SuppressionMinDB, r.SuppressionMeanDB,
+			r.RippleDB, r.DelaySamples, r.DelayMS, r.MACsPerSample)
+		if verify {
+			line += fmt.Sprintf("%.2f\t", *r.MeasuredMinDB)
+		}
+		fmt.Fprintln(tw, line)
+	}
+	return tw.Flush()
+}
+
+func writeSweepCSV(w io.Writer, rows []sweepRow, verify bool) error {
+	cw := csv.NewWriter(w)
+	head := []string{"design", "length", "suppression_min_db", "suppression_mean_db", "ripple_db", "delay_samples", "delay_ms", "macs_per_sample"}
+	if verify {
+		head = append(head, "measured_min_db")
+	}
+	cw.Write(head)
+	g := func(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
+	for _, r := range rows {
+		rec := []string{r.Design, strconv.Itoa(r.Length), g(r.SuppressionMinDB), g(r.SuppressionMeanDB), g(r.RippleDB),
+			g(r.DelaySamples), g(r.DelayMS), g(r.MACsPerSample)}
+		if verify {
+			rec = append(rec, g(*r.MeasuredMinDB))
+		}
+		cw.Write(rec)
+	}
+	cw.Flush()
+	return cw.Error()
+}
+
+// parseDesigns parses a comma list of design names ("all" for every one).
+func parseDesigns(s string) ([]string, error) {
+	if strings.TrimSpace(s) == "all" {
+		return append([]string(nil), hilbert.Designs...), nil
+	}
+	var out []string
+	seen := map[string]bool{}
+	for _, d := range strings.Split(s, ",") {
+		d = strings.TrimSpace(d)
+		if !isDesign(d) {
+			return nil, usagef("--designs: unknown design %q (allowed: %s, or all)", d, strings.Join(hilbert.Designs, ", "))
+		}
+		if !seen[d] {
+			out = append(out, d)
+			seen[d] = true
+		}
+	}
+	return out, nil
+}
+
+func isDesign(d string) bool {
+	for _, x := range hilbert.Designs {
+		if x == d {
+			return true
+		}
+	}
+	return false
+}
+
+// maxSweepRows bounds the number of lengths one flag may ask for.
+const maxSweepRows = 10000
+
+// parseLengths parses START:STOP:STEP (STOP inclusive; STEP defaults to 1)
+// or a comma list of positive integers.
+func parseLengths(flag, s string) ([]int, error) {
+	bad := func(why string) error {
+		return usagef("%s %q: %s (want START:STOP:STEP or a comma list, e.g. 7:255:8 or 31,63,127)", flag, s, why)
+	}
+	s = strings.TrimSpace(s)
+	if strings.Contains(s, ":") {
+		parts := strings.Split(s, ":")
+		if len(parts) < 2 || len(parts) > 3 {
+			return nil, bad("wrong number of fields")
+		}
+		var v [3]int
+		v[2] = 1
+		for i, p := range parts {
+			n, err := strconv.Atoi(strings.TrimSpace(p))
+			if err != nil {
+				return nil, bad("not an integer: " + p)
+			}
+			v[i] = n
+		}
+		if v[0] < 1 || v[1] < v[0] || v[2] < 1 {
+			return nil, bad("need 1 ≤ START ≤ STOP and STEP ≥ 1")
+		}
+		if (v[1]-v[0])/v[2] >= maxSweepRows {
+			return nil, bad("too many lengths")
+		}
+		var out []int
+		for n := v[0]; n <= v[1]; n += v[2] {
+			out = append(out, n)
+		}
+		return out, nil
+	}
+	var out []int
+	for _, p := range strings.Split(s, ",") {
+		n, err := strconv.Atoi(strings.TrimSpace(p))
+		if err != nil || n < 1 {
+			return nil, bad("not a positive integer: " + p)
+		}
+		out = append(out, n)
+	}
+	if len(out) > maxSweepRows {
+		return nil, bad("too many lengths")
+	}
+	return out, nil
+}
+
+// parseRateBand parses --rate and --band and checks 0 < low < high < rate/2.
+func parseRateBand(rateS, bandS string) (rate, low, high float64, err error) {
+	if rate, err = iq.ParseFrequency(rateS); err != nil || !(rate > 0) {
+		return 0, 0, 0, usagef("--rate %q: want a positive frequency in Hz (e.g. 8000 or 48k)", rateS)
+	}
+	if low, high, err = iq.ParseBand(bandS); err != nil {
+		return 0, 0, 0, usagef("--band: %v", err)
+	}
+	if !(low > 0 && high < rate/2) {
+		return 0, 0, 0, usagef("--band %s: want 0 < LOW < HIGH < rate/2 = %s Hz", bandS, fmtHz(rate/2))
+	}
+	return rate, low, high, nil
+}
+
+// fmtHz formats a frequency in Hz without trailing zeros.
+func fmtHz(f float64) string { return strconv.FormatFloat(f, 'f', -1, 64) }
