@@ -137,12 +137,13 @@ func NoiseFloor(psd []float64, rate, smoothHz float64) float64 {
 //     the middle with sidebands on both sides, each beyond ±NarrowHz/2 of
 //     the peak and at least −30 dB of the peak's power, is AM; a peak
 //     holding 90 % of the power is a carrier (wider only by the window's
-//     skirts); otherwise the
-//     power centroid tells the sideband — voice energy crowds towards the
-//     carrier, so a centroid in the lower part of the band is USB, in the
-//     upper part LSB, else unknown.
+//     skirts); otherwise the power centroid tells the sideband — voice
+//     energy crowds towards the carrier, so a centroid in the lower part
+//     of the band is USB, in the upper part LSB, else unknown.
 //
-// Signals come back sorted by frequency.
+// Three carriers with a stronger one in the middle and two equal ones
+// symmetric about it (a carrier amplitude-modulated by one tone) become
+// one AM signal. Signals come back sorted by frequency.
 func Detect(psd []float64, rate float64, opt DetectOptions) []Signal {
 	n := len(psd)
 	if n < 8 || !(rate > 0) {
@@ -184,6 +185,7 @@ func Detect(psd []float64, rate float64, opt DetectOptions) []Signal {
 	}
 	freq := func(j float64) float64 { return (j - float64(n/2)) * bin }
 	var out []Signal
+	var peaks []float64 // peak density of each signal
 	for _, g := range groups {
 		// pull the edges in to raw bins above the threshold
 		a, b := g.a, g.b
@@ -243,8 +245,35 @@ func Detect(psd []float64, rate float64, opt DetectOptions) []Signal {
 			}
 		}
 		out = append(out, s)
+		peaks = append(peaks, psd[peak])
 	}
-	return out
+	return mergeToneAM(out, peaks, bin)
+}
+
+// mergeToneAM joins three carriers that look like a carrier amplitude
+// modulated by one tone — a stronger middle line with two lines of equal
+// level (within 3 dB) symmetric about it (within two bins) and at most
+// 5 kHz away — into one AM signal.
+func mergeToneAM(sig []Signal, peaks []float64, bin float64) []Signal {
+	for i := 1; i+1 < len(sig); i++ {
+		l, c, r := sig[i-1], sig[i], sig[i+1]
+		if l.Kind != KindCarrier || c.Kind != KindCarrier || r.Kind != KindCarrier {
+			continue
+		}
+		d1, d2 := c.OffsetHz-l.OffsetHz, r.OffsetHz-c.OffsetHz
+		if math.Abs(d1-d2) > 2*bin || d1 > 5000 ||
+			peaks[i-1] >= peaks[i] || peaks[i+1] >= peaks[i] ||
+			math.Abs(dB(peaks[i-1])-dB(peaks[i+1])) > 3 {
+			continue
+		}
+		m := Signal{OffsetHz: c.OffsetHz, LowHz: l.LowHz, HighHz: r.HighHz, Kind: KindAM}
+		// noise-free powers add: SNR over the joined width
+		pow := func(s Signal) float64 { return math.Pow(10, s.SNRdB/10) * (s.HighHz - s.LowHz) }
+		m.SNRdB = dB((pow(l) + pow(c) + pow(r)) / (m.HighHz - m.LowHz))
+		sig = append(sig[:i-1], append([]Signal{m}, sig[i+2:]...)...)
+		peaks = append(peaks[:i-1], append([]float64{peaks[i]}, peaks[i+2:]...)...)
+	}
+	return sig
 }
 
 // An AM signal has at least sidebandMin of its carrier's power on each

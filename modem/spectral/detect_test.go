@@ -89,3 +89,18 @@ func TestDetectCarrierAndNothing(t *testing.T) {
 		t.Error("empty or silent spectrum: want no signals")
 	}
 }
+
+func TestDetectToneAM(t *testing.T) {
+	// A carrier amplitude-modulated by one tone, a(1 + m·cos ωt), is the
+	// carrier plus two lines of amplitude a·m/2 at ±ω (Haykin, Communication
+	// Systems, 4th ed., eq. 3.7): one AM signal, not three carriers.
+	const rate = 48000.0
+	a := NewAccumulator(2048, rate)
+	a.Add(addNoise(lines(1<<17, rate, line{f: 9000, amp: 0.2}, line{f: 8000, amp: 0.05}, line{f: 10000, amp: 0.05},
+		line{f: -6000, amp: 0.05}), 1e-5, 37))
+	s := Detect(a.PSD(), rate, DetectOptions{})
+	if len(s) != 2 || s[0].Kind != KindCarrier || s[1].Kind != KindAM || math.Abs(s[1].OffsetHz-9000) > rate/2048 ||
+		s[1].LowHz > 8000 || s[1].HighHz < 10000 {
+		t.Errorf("found %+v, want a carrier at −6000 Hz and AM at 9000 Hz spanning 8–10 kHz", s)
+	}
+}
