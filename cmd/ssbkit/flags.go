@@ -30,10 +30,15 @@ func newFlagSet(e *env, name, usage, examples string) *pflag.FlagSet {
 // parseFlags parses args, mapping pflag's errors to usage errors. Help
 // returns errHelp after printing.
 func parseFlags(fs *pflag.FlagSet, args []string) error {
+	// pflag calls Usage itself on -h and on errors; silence it during
+	// Parse so help is printed once, to stdout, and errors stay one line.
+	usage := fs.Usage
+	fs.Usage = func() {}
 	fs.SetOutput(discard{})
 	err := fs.Parse(args)
+	fs.Usage = usage
 	if err == pflag.ErrHelp {
-		fs.Usage()
+		usage()
 		return errHelp
 	}
 	if err != nil {
