@@ -261,6 +261,21 @@ func verdict(good, fair bool) string {
 	return "poor"
 }
 
+// bound marks a figure that measured the noise (an upper bound).
+func bound(atNoise bool) string {
+	if atNoise {
+		return "≤"
+	}
+	return " "
+}
+
+func atNoiseNote(atNoise bool) string {
+	if atNoise {
+		return " [at the noise: an upper bound]"
+	}
+	return ""
+}
+
 func writeMeasureText(w io.Writer, in string, meta iq.Meta, r *spectral.Result, imb iq.Imbalance) error {
 	p := func(format string, a ...any) { fmt.Fprintf(w, format, a...) }
 	p("%s: %.0f S/s, %d samples (%.2f s)\n", in, r.RateHz, r.Samples, float64(r.Samples)/r.RateHz)
@@ -272,9 +287,15 @@ func writeMeasureText(w io.Writer, in string, meta iq.Meta, r *spectral.Result, 
 	am := r.CarrierDBc >= amCarrierDBc
 	p("  wanted sideband     %8.2f dBFS\n", r.WantedDBFS)
 	p("  unwanted sideband   %8.2f dBFS\n", r.UnwantedDBFS)
-	if am {
+	switch {
+	case am:
 		p("  suppression         %8.2f dB     (carrier present: AM or carrier inserted, no verdict)\n", r.SuppressionDB)
-	} else {
+	case r.UnwantedAtNoise && r.SuppressionDB < goodSuppressionDB:
+		p("  suppression       ≥ %8.2f dB     unknown: the opposite sideband is at the noise (expect ≥ %d dB; a stronger recording would tell)\n",
+			r.SuppressionDB, goodSuppressionDB)
+	case r.UnwantedAtNoise:
+		p("  suppression       ≥ %8.2f dB     good (opposite sideband at the noise; expect ≥ %d dB)\n", r.SuppressionDB, goodSuppressionDB)
+	default:
 		p("  suppression         %8.2f dB     %s (expect ≥ %d dB)\n", r.SuppressionDB,
 			verdict(r.SuppressionDB >= goodSuppressionDB, r.SuppressionDB >= fairSuppressionDB), goodSuppressionDB)
 	}
@@ -289,8 +310,8 @@ func writeMeasureText(w io.Writer, in string, meta iq.Meta, r *spectral.Result, 
 	if am {
 		p("  carrier             %8.2f dBc    (strong carrier: AM or carrier inserted)\n", r.CarrierDBc)
 	} else {
-		p("  carrier             %8.2f dBc    %s (expect ≤ %d dBc)\n", r.CarrierDBc,
-			verdict(r.CarrierDBc <= goodCarrierDBc, r.CarrierDBc <= fairCarrierDBc), goodCarrierDBc)
+		p("  carrier           %s %8.2f dBc    %s (expect ≤ %d dBc)%s\n", bound(r.CarrierAtNoise), r.CarrierDBc,
+			verdict(r.CarrierDBc <= goodCarrierDBc, r.CarrierDBc <= fairCarrierDBc), goodCarrierDBc, atNoiseNote(r.CarrierAtNoise))
 	}
 	p("  occupied bandwidth  %8.1f Hz     %s (99 %%, %+.0f…%+.0f Hz; expect ≤ %d Hz for voice)\n", r.OccupiedBandwidthHz,
 		verdict(r.OccupiedBandwidthHz <= goodOBWHz, r.OccupiedBandwidthHz <= 1.2*goodOBWHz),
@@ -298,10 +319,10 @@ func writeMeasureText(w io.Writer, in string, meta iq.Meta, r *spectral.Result, 
 	if r.TwoTone {
 		p("  two tones           %+8.1f Hz at %.2f dBFS, %+.1f Hz at %.2f dBFS\n",
 			r.Tones[0].OffsetHz, r.Tones[0].DBFS, r.Tones[1].OffsetHz, r.Tones[1].DBFS)
-		p("  IMD3                %8.2f dBc    %s (expect ≤ %d dBc); %.2f dB PEP\n", r.IMD3DBc,
-			verdict(r.IMD3DBc <= goodIMD3DBc, r.IMD3DBc <= fairIMD3DBc), goodIMD3DBc, r.IMD3DBPEP)
-		p("  IMD5                %8.2f dBc    %s (expect ≤ %d dBc); %.2f dB PEP\n", r.IMD5DBc,
-			verdict(r.IMD5DBc <= goodIMD5DBc, r.IMD5DBc <= fairIMD5DBc), goodIMD5DBc, r.IMD5DBPEP)
+		p("  IMD3              %s %8.2f dBc    %s (expect ≤ %d dBc); %.2f dB PEP%s\n", bound(r.IMD3AtNoise), r.IMD3DBc,
+			verdict(r.IMD3DBc <= goodIMD3DBc, r.IMD3DBc <= fairIMD3DBc), goodIMD3DBc, r.IMD3DBPEP, atNoiseNote(r.IMD3AtNoise))
+		p("  IMD5              %s %8.2f dBc    %s (expect ≤ %d dBc); %.2f dB PEP%s\n", bound(r.IMD5AtNoise), r.IMD5DBc,
+			verdict(r.IMD5DBc <= goodIMD5DBc, r.IMD5DBc <= fairIMD5DBc), goodIMD5DBc, r.IMD5DBPEP, atNoiseNote(r.IMD5AtNoise))
 	} else {
 		p("  two-tone test       not found (IMD needs two dominant tones)\n")
 	}

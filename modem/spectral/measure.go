@@ -188,6 +188,13 @@ type Result struct {
 	OccupiedLowHz, OccupiedHighHz float64
 	// NoiseDBFSPerHz is the noise floor density of the capture.
 	NoiseDBFSPerHz float64
+	// UnwantedAtNoise, CarrierAtNoise, IMD3AtNoise and IMD5AtNoise are set
+	// when that power is within 3 dB of the noise in the same band (the
+	// band for a sideband, one flat-top bin for a line): the figure then
+	// measures the noise and is only a bound (suppression at least, the
+	// others at most).
+	UnwantedAtNoise, CarrierAtNoise bool
+	IMD3AtNoise, IMD5AtNoise        bool
 
 	// TwoTone is set when two tones dominate the wanted sideband; then
 	// Tones holds them (lower first) and the IMD figures are set, with
@@ -204,6 +211,10 @@ type Result struct {
 
 // ErrNoSignal reports a capture whose band holds nothing above the noise.
 var ErrNoSignal = errors.New("no signal")
+
+// atNoise is the ratio to the noise power (3 dB) below which a figure is
+// flagged as measuring the noise.
+const atNoise = 2
 
 // minSignalDB is how far the stronger sideband must rise above the noise
 // power in the same band to count as a signal.
@@ -255,6 +266,9 @@ func (m *Measurer) Result() (*Result, error) {
 	_, pc, _ := fs.Tone(c, fs.BinHz())
 	r.CarrierDBFS = dB(pc)
 	r.CarrierDBc = r.CarrierDBFS - r.PEPDBFS
+	lineNoise := floor * fs.BinHz() * fs.ENBW
+	r.UnwantedAtNoise = unwant <= atNoise*noiseBand
+	r.CarrierAtNoise = pc <= atNoise*lineNoise
 
 	// occupied bandwidth over the carrier ± 2·BandHigh, within the capture
 	span := 2 * o.BandHigh
@@ -329,7 +343,8 @@ func (m *Measurer) twoTone(r *Result, side string, want float64) {
 		_, p, ok := fs.Tone(f, fs.BinHz())
 		return Tone{f - c, dB(p)}, ok
 	}
-	worst := func(orders ...float64) float64 {
+	lineNoise := dB(NoiseFloor(r.Spectrum.Density, m.rate, 60) * fs.BinHz() * fs.ENBW)
+	worst := func(orders ...float64) (float64, bool) {
 		best := math.Inf(-1)
 		for _, a := range orders {
 			if t, ok := level(a); ok {
@@ -337,10 +352,11 @@ func (m *Measurer) twoTone(r *Result, side string, want float64) {
 				best = math.Max(best, t.DBFS)
 			}
 		}
-		return best
+		return best, best <= lineNoise+10*math.Log10(atNoise)
 	}
-	p3 := worst(2*a1-a2, 2*a2-a1)
-	p5 := worst(3*a1-2*a2, 3*a2-2*a1)
+	p3, n3 := worst(2*a1-a2, 2*a2-a1)
+	p5, n5 := worst(3*a1-2*a2, 3*a2-2*a1)
+	r.IMD3AtNoise, r.IMD5AtNoise = n3, n5
 	r.IMD3DBc = p3 - dB(ref)
 	r.IMD5DBc = p5 - dB(ref)
 	r.IMD3DBPEP = p3 - r.PEPDBFS

@@ -95,6 +95,34 @@ func TestMeasureTwoTone(t *testing.T) {
 	if r.Sideband != Upper || !r.TwoTone {
 		t.Errorf("sideband %q two-tone %v, want upper and true", r.Sideband, r.TwoTone)
 	}
+	if r.UnwantedAtNoise || r.CarrierAtNoise || r.IMD3AtNoise || r.IMD5AtNoise {
+		t.Errorf("figures flagged at the noise: %v %v %v %v; every line is far above it",
+			r.UnwantedAtNoise, r.CarrierAtNoise, r.IMD3AtNoise, r.IMD5AtNoise)
+	}
+}
+
+func TestMeasureAtNoise(t *testing.T) {
+	// One clean tone in noise of −100 dBFS/Hz: the opposite sideband and
+	// the carrier hold only noise, so both figures are flagged as bounds.
+	const rate = 48000.0
+	x := addNoise(lines(1<<16, rate, line{f: 1000, amp: 0.5}), 1e-10*rate, 25)
+	m, err := NewMeasurer(rate, -1, MeasureOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	m.Add(x)
+	r, err := m.Result()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !r.UnwantedAtNoise || !r.CarrierAtNoise {
+		t.Errorf("unwanted at noise %v, carrier at noise %v; want both", r.UnwantedAtNoise, r.CarrierAtNoise)
+	}
+	// the unwanted band holds noise only: −100 dBFS/Hz over 2400 Hz
+	// (the density defined in DESIGN.md's dBFS), within 0.5 dB
+	if want := -100 + 10*math.Log10(2400); math.Abs(r.UnwantedDBFS-want) > 0.5 {
+		t.Errorf("unwanted %.2f dBFS, want the noise %.2f", r.UnwantedDBFS, want)
+	}
 }
 
 func TestMeasureLowerSidebandPEPRelation(t *testing.T) {
