@@ -72,6 +72,14 @@ func (o *Oscillator) Phase() float64 {
 	return float64(int64(o.run+uint64(o.k)*o.step)) * (2 * math.Pi / (1 << 64))
 }
 
+// SetPhase sets the phase of the next sample to phi radians.
+func (o *Oscillator) SetPhase(phi float64) {
+	c := phi / (2 * math.Pi)
+	c -= math.Round(c)
+	o.run, o.k = uint64(int64(math.Round(c*(1<<63))))*2, 0
+	o.base = phasor(o.run)
+}
+
 // Advance moves the phase on by n samples without producing them.
 func (o *Oscillator) Advance(n int) {
 	t := uint64(o.k) + uint64(n)

@@ -188,3 +188,15 @@ func BenchmarkOscillatorMix(b *testing.B) {
 	}
 	b.ReportMetric(float64(b.N*len(src))/b.Elapsed().Seconds()/1e6, "MS/s")
 }
+
+// TestOscillatorSetPhase checks that the first sample after SetPhase is
+// e^{jφ} (definition).
+func TestOscillatorSetPhase(t *testing.T) {
+	o := NewOscillator(1000, 8000)
+	for _, phi := range []float64{0, 1, -2.5, math.Pi, 10} {
+		o.SetPhase(phi)
+		if d := cmplx.Abs(complex128(o.Generate(make([]complex64, 1))[0]) - cmplx.Exp(complex(0, phi))); d > tolC64 {
+			t.Errorf("SetPhase(%g): error %.3g", phi, d)
+		}
+	}
+}

@@ -248,6 +248,7 @@ type Modulator struct {
 	out     *Resampler
 	osc     *Oscillator
 	carrier float32 // added to the baseband before gain (usb/lsb/am)
+	phase0  float64 // initial oscillator phase
 	z, y    []complex64
 	delay   float64
 }
@@ -270,6 +271,7 @@ func NewModulator(cfg TxConfig) (*Modulator, error) {
 	if err != nil {
 		return nil, err
 	}
+	m.delay = fr.delay*cfg.OutRate/fr.rate + m.out.Delay()
 	if cfg.Offset != 0 {
 		m.osc = NewOscillator(cfg.Offset, cfg.OutRate)
 	}
@@ -282,7 +284,6 @@ func NewModulator(cfg TxConfig) (*Modulator, error) {
 			m.carrier = float32(k * cfg.Levels.EnvelopePeak / (1 - k))
 		}
 	}
-	m.delay = fr.delay*cfg.OutRate/fr.rate + m.out.Delay()
 	return m, nil
 }
 
@@ -298,6 +299,19 @@ func (m *Modulator) Splitter() hilbert.Splitter { return m.fr.splitter }
 // Delay returns the delay from audio to I/Q in output samples: audio
 // sample n (at AudioRate) appears at output n·OutRate/AudioRate + Delay().
 func (m *Modulator) Delay() float64 { return m.delay }
+
+// SetCarrierPhase sets the phase in radians of the carrier (the offset
+// oscillator) at the next output sample; Reset returns to it. By default
+// the carrier phase is 0 at the first output sample. A caller that drops
+// the first d output samples to align the I/Q with the audio calls
+// SetCarrierPhase(−2π·Offset·d/OutRate) first, so that a receiver starting
+// at the first kept sample sees carrier phase 0.
+func (m *Modulator) SetCarrierPhase(phi float64) {
+	m.phase0 = phi
+	if m.osc != nil {
+		m.osc.SetPhase(phi)
+	}
+}
 
 // CarrierAmplitude returns the carrier amplitude in the output (after
 // gain); 0 when suppressed.
@@ -316,7 +330,7 @@ func (m *Modulator) Reset() {
 	m.fr.reset()
 	m.out.Reset()
 	if m.osc != nil {
-		m.osc.Reset()
+		m.osc.SetPhase(m.phase0)
 	}
 }
 

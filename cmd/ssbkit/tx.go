@@ -347,6 +347,8 @@ func runTx(e *env, args []string) error {
 	defer closeSrc()
 	total := int64(math.Round(float64(src.Frames()) * cfg.OutRate / cfg.AudioRate))
 	skip := int64(math.Round(m.Delay()))
+	// Carrier phase 0 at the first sample written.
+	m.SetCarrierPhase(-2 * math.Pi * math.Mod(cfg.Offset*float64(skip)/cfg.OutRate, 1))
 	w, err := createCapture(*out, meta, *force, input)
 	if err != nil {
 		return err
