@@ -5,6 +5,7 @@ import (
 	"io"
 	"math"
 	"math/cmplx"
+	"strconv"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
@@ -40,6 +41,21 @@ var designShapes = map[string]draw.GlyphDrawer{
 	"weaver":     draw.PlusGlyph{},
 }
 
+// sweepPlotMaxDB is where the sweep plot's suppression axis stops: designs
+// beyond it are far past what float32 streaming can deliver.
+const sweepPlotMaxDB = 200
+
+// dbTicks marks a dB axis every step dB.
+type dbTicks struct{ step float64 }
+
+func (t dbTicks) Ticks(lo, hi float64) []plot.Tick {
+	var ts []plot.Tick
+	for v := math.Ceil(lo/t.step) * t.step; v <= hi; v += t.step {
+		ts = append(ts, plot.Tick{Value: v, Label: strconv.FormatFloat(v, 'f', -1, 64)})
+	}
+	return ts
+}
+
 // writeSweepPNG draws the sweep: minimum suppression against length (left)
 // and against multiply-adds per sample (right), one line per design.
 func writeSweepPNG(w io.Writer, title string, designs []string, rows []sweepRow) error {
@@ -54,10 +70,12 @@ func writeSweepPNG(w io.Writer, title string, designs []string, rows []sweepRow)
 		p.X.Scale = plot.LogScale{}
 		p.X.Tick.Marker = plot.LogTicks{Prec: -1}
 		p.Add(plotter.NewGrid())
-		p.Legend.Top = false
-		p.Legend.Left = false
-		p.Legend.YOffs = vg.Points(10)
+		p.Legend.Top = true
+		p.Legend.Left = true
+		p.Legend.XOffs = vg.Points(10)
+		p.Y.Tick.Marker = dbTicks{step: 20}
 	}
+	byLen.Y.Label.Text = "minimum suppression (dB; axis stops at 200)"
 	for _, d := range designs {
 		var xl, xc plotter.XYs
 		for _, r := range rows {
@@ -88,6 +106,10 @@ func writeSweepPNG(w io.Writer, title string, designs []string, rows []sweepRow)
 			p.Legend.Add(d, l, pts)
 		}
 	}
+	for _, p := range []*plot.Plot{byLen, byCost} {
+		p.Y.Min = 0
+		p.Y.Max = math.Min(p.Y.Max+5, sweepPlotMaxDB)
+	}
 	img := vgimg.New(14*vg.Inch, 6*vg.Inch)
 	dc := draw.New(img)
 	tiles := draw.Tiles{Rows: 1, Cols: 2, PadX: vg.Points(20), PadTop: vg.Points(8), PadBottom: vg.Points(8), PadLeft: vg.Points(8), PadRight: vg.Points(12)}
@@ -107,9 +129,9 @@ func splitterPaths(sp hilbert.Splitter, f float64) (i, q complex128) {
 }
 
 // writeSplitterPNG draws the whole-circle response of the analytic filter
-// in dB (top) and the phase-difference error of Q against I (bottom, over
-// the band).
-func writeSplitterPNG(w io.Writer, title string, sp hilbert.Splitter, low, high float64) error {
+// in dB (top), and over the band the phase-difference error of Q against
+// I and their gain ratio.
+func writeSplitterPNG(w io.Writer, title string, sp hilbert.Splitter, low, high, minDB float64) error {
 	rate := sp.Spec().Rate
 	resp := plot.New()
 	resp.Title.Text = title
@@ -118,7 +140,7 @@ func writeSplitterPNG(w io.Writer, title string, sp hilbert.Splitter, low, high 
 	resp.Add(plotter.NewGrid())
 	const n = 4001
 	var xy plotter.XYs
-	floor := -hilbert.MaxSuppressionDB + 0.0
+	floor := -math.Min(220, minDB+60) // show the stop band, not float64 dust
 	for k := range n {
 		f := -rate/2 + rate*float64(k)/(n-1)
 		g := cmplx.Abs(sp.Response(f)) / 2
@@ -148,13 +170,25 @@ func writeSplitterPNG(w io.Writer, title string, sp hilbert.Splitter, low, high 
 		v.Color = designColours["equiripple"]
 		v.Dashes = []vg.Length{vg.Points(4), vg.Points(3)}
 		resp.Add(v)
+		if f == high {
+			resp.Legend.Add("band (positive) and its mirror (negative)", v)
+		}
 	}
+	resp.Legend.Add("analytic filter |H(f)|", l)
+	resp.Legend.Left = false
+	resp.Legend.Top = false
+	resp.Legend.YOffs = vg.Points(20)
 
 	phase := plot.New()
 	phase.Title.Text = "Phase difference of Q against I, departure from −90°, over the band"
 	phase.X.Label.Text = "audio frequency (Hz)"
 	phase.Y.Label.Text = "phase error (degrees)"
 	phase.Add(plotter.NewGrid())
+	gain := plot.New()
+	gain.Title.Text = "Gain of Q against I over the band"
+	gain.X.Label.Text = "audio frequency (Hz)"
+	gain.Y.Label.Text = "Q/I gain (dB)"
+	gain.Add(plotter.NewGrid())
 	var pe, ge plotter.XYs
 	for k := range n {
 		f := low + (high-low)*float64(k)/(n-1)
@@ -169,23 +203,32 @@ func writeSplitterPNG(w io.Writer, title string, sp hilbert.Splitter, low, high 
 	pl.Color = designColours["allpass"]
 	pl.Width = vg.Points(1.2)
 	phase.Add(pl)
-	phase.Legend.Add("phase error (deg)", pl)
 	gl, err := plotter.NewLine(ge)
 	if err != nil {
 		return err
 	}
 	gl.Color = designColours["hamming"]
-	gl.Dashes = []vg.Length{vg.Points(5), vg.Points(3)}
-	phase.Add(gl)
-	phase.Legend.Add("Q/I gain (dB, same axis)", gl)
-	phase.Legend.Top = true
+	gl.Width = vg.Points(1.2)
+	gain.Add(gl)
+	// Exactly equal gains (all-pass) or an exact 90° (FIR) would otherwise
+	// get an axis spanning rounding noise.
+	minSpan(gain, 1e-3)
+	minSpan(phase, 1e-3)
 
-	img := vgimg.New(12*vg.Inch, 9*vg.Inch)
+	img := vgimg.New(12*vg.Inch, 11*vg.Inch)
 	dc := draw.New(img)
-	tiles := draw.Tiles{Rows: 2, Cols: 1, PadY: vg.Points(16), PadTop: vg.Points(8), PadBottom: vg.Points(8), PadLeft: vg.Points(8), PadRight: vg.Points(12)}
-	cs := plot.Align([][]*plot.Plot{{resp}, {phase}}, tiles, dc)
+	tiles := draw.Tiles{Rows: 3, Cols: 1, PadY: vg.Points(16), PadTop: vg.Points(8), PadBottom: vg.Points(8), PadLeft: vg.Points(8), PadRight: vg.Points(12)}
+	cs := plot.Align([][]*plot.Plot{{resp}, {phase}, {gain}}, tiles, dc)
 	resp.Draw(cs[0][0])
 	phase.Draw(cs[1][0])
+	gain.Draw(cs[2][0])
 	_, err = vgimg.PngCanvas{Canvas: img}.WriteTo(w)
 	return err
+}
+
+// minSpan widens p's y axis to at least span around its middle.
+func minSpan(p *plot.Plot, span float64) {
+	if mid := (p.Y.Min + p.Y.Max) / 2; p.Y.Max-p.Y.Min < span {
+		p.Y.Min, p.Y.Max = mid-span/2, mid+span/2
+	}
 }

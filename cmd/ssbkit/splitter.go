@@ -114,7 +114,7 @@ func runSplitter(e *env, args []string) error {
 	title := fmt.Sprintf("%s, %s %d, %s Hz, band %s–%s Hz: min suppression %.1f dB", spec.Design, lengthName(spec.Design), length,
 		fmtHz(rate), fmtHz(low), fmtHz(high), a.SuppressionMinDB)
 	if *plotTo != "" {
-		err := writeOutputTo(e, *plotTo, *force, func(w io.Writer) error { return writeSplitterPNG(w, title, sp, low, high) })
+		err := writeOutputTo(e, *plotTo, *force, func(w io.Writer) error { return writeSplitterPNG(w, title, sp, low, high, a.SuppressionMinDB) })
 		if err != nil {
 			return err
 		}
