@@ -200,7 +200,7 @@ func NewChannel(cfg RxConfig) (*Channel, error) {
 	}
 	// Choose the phases: advance the sampling grid by s input samples,
 	// s < Decim, so that the total delay is a whole number of audio samples.
-	k := math.Ceil(-t*fa - 1e-9)
+	k := math.Floor(-t*fa + 1e-9)
 	s := int(math.Round((-k/fa - t) * fs))
 	s = max(0, min(s, plan.Decim-1))
 	t += float64(s) / fs

@@ -1,0 +1,107 @@
+#!/usr/bin/env bash
+# ssbkit side by side with the numpy/scipy references in ../shared/bench
+# (see bench/README.md). Usage:
+#
+#   bench/run.sh [rx] [RUNS]
+#
+# Sections: setup (build, tools, test data), rx (decode). Each section
+# times ssbkit and the reference alternately on the same file, RUNS times
+# each (default 3), and prints input MS/s, the ratio and peak resident
+# memory (GNU time -v). The machine is shared: quote ratios from one run.
+set -euo pipefail
+
+here=$(cd "$(dirname "$0")" && pwd)
+root=$(cd "$here/.." && pwd)
+refdir=${REFDIR:-$root/../shared/bench}
+DATA=${DATA:-${TMPDIR:-/tmp}/iqperf}
+export DATA
+PY=/usr/bin/python3
+work=$(mktemp -d)
+trap 'rm -rf "$work"' EXIT
+
+sections=()
+runs=3
+for a in "$@"; do
+	case $a in
+	rx) sections+=("$a") ;;
+	[0-9]*) runs=$a ;;
+	*) echo "usage: $0 [rx] [RUNS]" >&2; exit 2 ;;
+	esac
+done
+[ ${#sections[@]} -gt 0 ] || sections=(rx)
+
+# ---------------------------------------------------------------- setup
+if [ ! -x /usr/bin/time ]; then
+	echo "installing GNU time (peak memory accounting)" >&2
+	apt-get install -y time >/dev/null 2>&1 || { apt-get update >/dev/null && apt-get install -y time >/dev/null; }
+fi
+if ! $PY -c 'import numpy, scipy' 2>/dev/null; then
+	echo "installing python3-scipy (the reference pipelines)" >&2
+	apt-get install -y python3-scipy >/dev/null 2>&1 || { apt-get update >/dev/null && apt-get install -y python3-scipy >/dev/null; }
+fi
+echo "building ssbkit" >&2
+(cd "$root" && go build -o "$work/ssbkit" ./cmd/ssbkit)
+ssbkit=$work/ssbkit
+if [ ! -s "$DATA/capture_60s.cu8" ] || [ ! -s "$DATA/capture.json" ]; then
+	echo "generating the test capture in $DATA (about 90 s, once)" >&2
+	$PY "$refdir/gen_capture.py"
+fi
+cap=$DATA/capture_60s.cu8
+insamples=$(( $(stat -c %s "$cap") / 2 ))
+# warm the page cache so that neither side pays the first read
+cat "$cap" >/dev/null
+
+# timed NAME OUTFILE CMD... : runs CMD under GNU time, prints one line
+# "NAME  seconds  MS/s  peak-MB" and appends the seconds to OUTFILE.
+timed() {
+	local name=$1 out=$2
+	shift 2
+	/usr/bin/time -f '%e %M' -o "$work/time" "$@" >/dev/null 2>"$work/err" || {
+		cat "$work/err" >&2
+		return 1
+	}
+	read -r secs kb <"$work/time"
+	echo "$secs $kb" >>"$out"
+	awk -v n="$name" -v s="$secs" -v k="$kb" -v ns="$insamples" \
+		'BEGIN { printf "  %-26s %6.2f s  %7.1f MS/s  %6.1f MB peak\n", n, s, ns / s / 1e6, k / 1024 }'
+}
+
+# summary NAME FILE: best (lowest) time and largest peak of the runs.
+best() { sort -n "$1" | head -1 | cut -d' ' -f1; }
+peak() { sort -k2 -n "$1" | tail -1 | cut -d' ' -f2; }
+
+# ---------------------------------------------------------------- rx
+section_rx() {
+	echo
+	echo "== rx: one USB channel, 60 s of 2.4 MS/s cu8, AGC off (ssbkit rx vs decode_usb.py)"
+	local s=$work/rx_ssbkit r=$work/rx_ref m=$work/rx_multi o=$work/rx_one
+	: >"$s"; : >"$r"; : >"$m"; : >"$o"
+	for i in $(seq "$runs"); do
+		rm -f "$work/a.wav" "$work/b.wav"
+		timed "ssbkit rx (run $i)" "$s" "$ssbkit" rx "$cap" --rate 2.4M --offset 120k --agc off -q -o "$work/a.wav"
+		timed "decode_usb.py (run $i)" "$r" $PY "$refdir/decode_usb.py" "$cap" "$work/b.wav" --offset 120000 --no-agc
+	done
+	local ts tr
+	ts=$(best "$s"); tr=$(best "$r")
+	awk -v a="$ts" -v b="$tr" -v ns="$insamples" -v pa="$(peak "$s")" -v pb="$(peak "$r")" 'BEGIN {
+		printf "  best: ssbkit %.2f s (%.1f MS/s), reference %.2f s (%.1f MS/s): ssbkit is %.2fx the reference\n", a, ns/a/1e6, b, ns/b/1e6, b/a
+		printf "  peak memory: ssbkit %.1f MB, reference %.1f MB\n", pa/1024, pb/1024 }'
+	echo "  audio quality (check_decode.py, SNR within 1 dB of the reference's is the goal):"
+	$PY "$refdir/check_decode.py" "$work/a.wav@120000" "$work/b.wav@120000" | sed 's/^/    /'
+
+	echo
+	echo "== rx: four channels in one pass against two single-channel passes"
+	for i in $(seq "$runs"); do
+		rm -f "$work"/m_*.wav "$work/c.wav"
+		timed "ssbkit rx, 4 channels (run $i)" "$m" "$ssbkit" rx "$cap" --rate 2.4M --offset -300k --offset 120k --offset 500k --offset 700k --agc off -q -o "$work/m_{freq}.wav"
+		timed "ssbkit rx, 1 channel (run $i)" "$o" "$ssbkit" rx "$cap" --rate 2.4M --offset 500k --agc off -q -o "$work/c.wav"
+	done
+	awk -v a="$(best "$m")" -v b="$(best "$o")" 'BEGIN {
+		printf "  best: four channels %.2f s, one channel %.2f s: four in one pass cost %.2f single passes (goal < 2)\n", a, b, a/b }'
+	$PY "$refdir/check_decode.py" "$work/m_-300000.wav@-300000" "$work/m_+120000.wav@120000" "$work/m_+500000.wav@500000" | sed 's/^/    /'
+}
+
+echo "input: $cap ($insamples samples); $(nproc) cores; load: $(cut -d' ' -f1-3 /proc/loadavg)"
+for sec in "${sections[@]}"; do
+	"section_$sec"
+done
