@@ -175,7 +175,8 @@ func (f *firSplitter) NewFilter() Filter {
 	for m := 1; m <= f.m; m += step {
 		h = append(h, float32(f.h[m]))
 	}
-	return &firFilter{h: h, m: f.m, step: step, buf: make([]float32, 2*f.m+firChunk)}
+	n := 2*f.m + firChunk
+	return &firFilter{h: h, m: f.m, step: step, buf: make([]float32, n), rev: make([]float32, n)}
 }
 
 // firChunk is the number of samples the FIR filter copies into its history
@@ -194,6 +195,7 @@ type firFilter struct {
 	m    int
 	step int
 	buf  []float32 // 2M samples of history followed by up to firChunk new ones
+	rev  []float32 // buf reversed, for the odd-tap loop
 }
 
 func (f *firFilter) Reset() { clear(f.buf) }
@@ -221,26 +223,35 @@ func (f *firFilter) Process(dst []complex64, src []float32) []complex64 {
 }
 
 // odd computes outputs for taps at odd m; window i of the buffer holds
-// x[n−2M] … x[n].
+// x[n−2M] … x[n]. The left half is read forwards from rev, the buffer
+// reversed, so both halves are walked forwards with stride 2 and the
+// compiler drops the bounds checks; the antisymmetry keeps one multiply
+// per tap pair.
 func (f *firFilter) odd(out []complex64) {
 	m := f.m
 	h := f.h
+	k := len(h)
+	lb := 2*m + len(out) // valid length of buf and rev
+	buf, rev := f.buf[:lb], f.rev[:lb]
+	for t, v := range buf {
+		rev[lb-1-t] = v
+	}
 	for i := range out {
-		w := f.buf[i : i+2*m+1]
-		lo := w[:m]   // lo[m−k] = x[n−M−k]
-		hi := w[m+1:] // hi[k−1] = x[n−M+k]
+		// x[n−M+1+2j] = buf[i+m+1+2j]; x[n−M−1−2j] = rev[lb−i−m+2j].
+		right := buf[i+m+1 : i+m+2*k]
+		left := rev[lb-i-m : lb-i-m+2*k-1]
 		var a0, a1 float32
 		j := 0
-		for ; j+1 < len(h); j += 2 {
-			k := 2*j + 1
-			a0 += h[j] * (lo[m-k] - hi[k-1])
-			a1 += h[j+1] * (lo[m-k-2] - hi[k+1])
+		for ; j+1 < k; j += 2 {
+			l := left[2*j : 2*j+3]
+			r := right[2*j : 2*j+3]
+			a0 += h[j] * (l[0] - r[0])
+			a1 += h[j+1] * (l[2] - r[2])
 		}
-		if j < len(h) {
-			k := 2*j + 1
-			a0 += h[j] * (lo[m-k] - hi[k-1])
+		if j < k {
+			a0 += h[j] * (left[2*j] - right[2*j])
 		}
-		out[i] = complex(w[m], a0+a1)
+		out[i] = complex(buf[i+m], a0+a1)
 	}
 }
 

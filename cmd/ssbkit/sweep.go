@@ -23,7 +23,10 @@ multiply-adds per sample. Length is FIR taps, the Weaver low-pass taps,
 the FFT block size, or the number of all-pass sections (one multiply
 each; total order 2·sections+1). With --verify a tone at each band edge
 and the centre runs through the real streaming filter and the worst
-measured suppression is shown beside the prediction.
+measured suppression is shown beside the prediction (they agree within
+1 dB up to about 100 dB; float32 streaming stops near 130 dB). Equiripple
+designs level off near 160 dB: past that the Remez exchange runs out of
+float64 precision and the design is kept at about 160 dB.
 
 Examples:
   ssbkit sweep
