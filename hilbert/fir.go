@@ -22,7 +22,8 @@ type firSplitter struct {
 
 // IdealTap returns the ideal discrete Hilbert transformer's coefficient
 // h[n] = 2/(πn) for odd n and 0 for even n (Oppenheim & Schafer,
-// Discrete-Time Signal Processing, 3rd ed., sec. 12.4.1; its response is
+// Discrete-Time Signal Processing, 3rd ed., sec. 12.4.1, section number
+// from memory; its response is
 // −j·sgn(ω), −90° at positive frequencies).
 func IdealTap(n int) float64 {
 	if n%2 == 0 {
@@ -32,7 +33,8 @@ func IdealTap(n int) float64 {
 }
 
 // KaiserBeta returns the Kaiser window β for a stop-band attenuation of a
-// dB by Kaiser's 1974 formula (Oppenheim & Schafer, 3rd ed., eq. 7.62):
+// dB by Kaiser's 1974 formula (Oppenheim & Schafer, 3rd ed., eq. 7.62,
+// equation number from memory):
 // 0.1102(a−8.7) above 50 dB, 0.5842(a−21)^0.4 + 0.07886(a−21) from 21 to
 // 50 dB, and 0 below.
 func KaiserBeta(a float64) float64 {

@@ -32,10 +32,12 @@ func TestSweepJSON(t *testing.T) {
 				t.Errorf("row %v lacks %q", r, k)
 			}
 		}
-		// Prediction and the streaming filter agree within 1 dB below
+		// The streaming filter measures no better than the band minimum
+		// predicted (the tones sample the band) and, for these designs
+		// whose minimum lies at a band edge, agrees within 1 dB below
 		// 100 dB (issue 3).
 		p, m := r["suppression_min_db"].(float64), r["measured_min_db"].(float64)
-		if p < 100 && (m-p > 1 || p-m > 1) {
+		if p < 100 && (m < p-1 || m > p+1) {
 			t.Errorf("%v %v: predicted %.2f, measured %.2f", r["design"], r["length"], p, m)
 		}
 	}
