@@ -223,8 +223,11 @@ func (spec *ResamplerSpec) check() error {
 // polyphase splits the prototype h into up phases of k taps each, every
 // phase reversed so that the convolution is a forward dot product with the
 // k most recent inputs (oldest first): ph[p·k+i] = h[p + (k−1−i)·up].
+// k is rounded up to a multiple of 4 (zero taps at the oldest end) so
+// that the inner loop runs four taps at a time without a tail.
 func polyphase(h []float64, up int) (ph []float32, k int) {
 	k = (len(h) + up - 1) / up
+	k = (k + 3) &^ 3
 	ph = make([]float32, up*k)
 	for p := range up {
 		for i := range k {
@@ -277,30 +280,34 @@ func (s *cstage) process(dst, src []complex64) []complex64 {
 	c := len(src)
 	j, p := s.j, s.p
 	up, down := s.up, s.down
+	if need := ((c-j)*up - p + down - 1) / down; j < c && n+need > len(d) {
+		panic("modem: resampler dst too short")
+	}
 	for j < c {
 		w := buf[j : j+k]
-		h := s.ph[p*k : p*k+k]
-		w = w[:len(h)]
-		var r0, i0, r1, i1 float32
-		t := 0
-		for ; t+1 < len(h); t += 2 {
-			a, b := w[t], w[t+1]
-			ha, hb := h[t], h[t+1]
-			r0 += ha * real(a)
-			i0 += ha * imag(a)
-			r1 += hb * real(b)
-			i1 += hb * imag(b)
+		for p < up {
+			h := s.ph[p*k : p*k+k]
+			w := w[:len(h)]
+			var r0, i0, r1, i1, r2, i2, r3, i3 float32
+			for t := 0; t+3 < len(h); t += 4 {
+				ww := w[t : t+4 : t+4]
+				hh := h[t : t+4 : t+4]
+				r0 += hh[0] * real(ww[0])
+				i0 += hh[0] * imag(ww[0])
+				r1 += hh[1] * real(ww[1])
+				i1 += hh[1] * imag(ww[1])
+				r2 += hh[2] * real(ww[2])
+				i2 += hh[2] * imag(ww[2])
+				r3 += hh[3] * real(ww[3])
+				i3 += hh[3] * imag(ww[3])
+			}
+			d[n] = complex((r0+r1)+(r2+r3), (i0+i1)+(i2+i3))
+			n++
+			p += down
+			if down != 1 {
+				break
+			}
 		}
-		if t < len(h) {
-			r0 += h[t] * real(w[t])
-			i0 += h[t] * imag(w[t])
-		}
-		if n >= len(d) {
-			panic("modem: resampler dst too short")
-		}
-		d[n] = complex(r0+r1, i0+i1)
-		n++
-		p += down
 		for p >= up {
 			p -= up
 			j++
@@ -331,27 +338,30 @@ func (s *rstage) process(dst, src []float32) []float32 {
 	c := len(src)
 	j, p := s.j, s.p
 	up, down := s.up, s.down
+	if need := ((c-j)*up - p + down - 1) / down; j < c && n+need > len(d) {
+		panic("modem: resampler dst too short")
+	}
 	for j < c {
 		w := buf[j : j+k]
-		h := s.ph[p*k : p*k+k]
-		w = w[:len(h)]
-		var s0, s1, s2, s3 float32
-		t := 0
-		for ; t+3 < len(h); t += 4 {
-			s0 += h[t] * w[t]
-			s1 += h[t+1] * w[t+1]
-			s2 += h[t+2] * w[t+2]
-			s3 += h[t+3] * w[t+3]
+		for p < up {
+			h := s.ph[p*k : p*k+k]
+			w := w[:len(h)]
+			var s0, s1, s2, s3 float32
+			for t := 0; t+3 < len(h); t += 4 {
+				ww := w[t : t+4 : t+4]
+				hh := h[t : t+4 : t+4]
+				s0 += hh[0] * ww[0]
+				s1 += hh[1] * ww[1]
+				s2 += hh[2] * ww[2]
+				s3 += hh[3] * ww[3]
+			}
+			d[n] = (s0 + s1) + (s2 + s3)
+			n++
+			p += down
+			if down != 1 {
+				break
+			}
 		}
-		for ; t < len(h); t++ {
-			s0 += h[t] * w[t]
-		}
-		if n >= len(d) {
-			panic("modem: resampler dst too short")
-		}
-		d[n] = (s0 + s1) + (s2 + s3)
-		n++
-		p += down
 		for p >= up {
 			p -= up
 			j++

@@ -355,56 +355,95 @@ func runTx(e *env, args []string) error {
 	}
 	defer w.Abort()
 	bar := newProgress(e, *quiet, "tx", total)
+	// Two goroutines: this one reads and modulates, the writer measures
+	// and writes, so that on two cores the encoding and the system calls
+	// overlap the filtering. Blocks circulate through a fixed pool.
+	const nbuf = 4
+	free := make(chan []complex64, nbuf)
+	full := make(chan []complex64, nbuf)
+	for range nbuf {
+		free <- make([]complex64, 0, m.MaxOut(len(buf)))
+	}
 	var (
 		written    int64
 		pep, power float64
-		dst        = make([]complex64, 0, m.MaxOut(len(buf)))
+		werr       error
+		wdone      = make(chan struct{})
 	)
-	emit := func(y []complex64) error {
+	go func() {
+		defer close(wdone)
+		for y := range full {
+			if werr == nil {
+				var sum, top float32
+				for i, v := range y {
+					p := real(v)*real(v) + imag(v)*imag(v)
+					sum += p
+					if p > top {
+						top = p
+					}
+					if i&1023 == 1023 { // float32 sums stay short
+						power += float64(sum)
+						sum = 0
+					}
+				}
+				power += float64(sum)
+				pep = max(pep, float64(top))
+				if _, err := w.Write(y); err != nil {
+					werr = fmt.Errorf("%s: %w", *out, err)
+				}
+				bar.Add(len(y))
+			}
+			free <- y[:0]
+		}
+	}()
+	var queued int64
+	// emit trims the delay at the start and the tail beyond the audio's
+	// length, and queues y (a block from the pool) for writing.
+	emit := func(y []complex64) {
+		d := 0
 		if skip > 0 {
-			d := int(min(skip, int64(len(y))))
-			y, skip = y[d:], skip-int64(d)
+			d = int(min(skip, int64(len(y))))
+			skip -= int64(d)
 		}
-		if rest := total - written; int64(len(y)) > rest {
-			y = y[:rest]
+		end := len(y)
+		if rest := total - queued; int64(end-d) > rest {
+			end = d + int(rest)
 		}
-		if len(y) == 0 {
-			return nil
+		if end > d {
+			// move the kept part to the front of the block
+			n := copy(y, y[d:end])
+			queued += int64(n)
+			full <- y[:n]
+			return
 		}
-		for _, v := range y {
-			p := float64(real(v))*float64(real(v)) + float64(imag(v))*float64(imag(v))
-			power += p
-			pep = math.Max(pep, p)
-		}
-		if _, err := w.Write(y); err != nil {
-			return fmt.Errorf("%s: %w", *out, err)
-		}
-		written += int64(len(y))
-		bar.Add(len(y))
-		return nil
+		free <- y[:0]
 	}
-	for {
-		n, rerr := src.Read(buf)
+	var rerr error
+	for rerr == nil {
+		var n int
+		n, rerr = src.Read(buf)
 		if n > 0 {
-			if err := emit(m.Process(dst, buf[:n])); err != nil {
-				return err
+			emit(m.Process(<-free, buf[:n]))
+		}
+	}
+	if rerr == io.EOF {
+		for queued < total {
+			before := queued
+			blk := <-free
+			emit(m.Flush(blk))
+			if queued == before && skip == 0 {
+				break
 			}
 		}
-		if rerr == io.EOF {
-			break
-		}
-		if rerr != nil {
-			return rerr
-		}
 	}
-	for written < total {
-		before := written
-		if err := emit(m.Flush(dst)); err != nil {
-			return err
-		}
-		if written == before && skip == 0 {
-			break
-		}
+	close(full)
+	<-wdone
+	written = queued
+	if rerr != io.EOF {
+		return rerr
+	}
+	if werr != nil {
+		return werr
 	}
 	bar.Done()
 	if err := w.Commit(); err != nil {
