@@ -2,8 +2,9 @@
 // generators (speech-like formant synthesis, tones, two tones, keyed tones,
 // noise), an evening on a 40 m-like band as a wideband I/Q capture, and a
 // bench test of the user's own transmitter with known imperfections. Every
-// generator is seeded and streaming, so the scenario is reproducible to the
-// byte and needs memory bounded by the block size, not by its length. The
+// generator is seeded and streaming, so the scenario is reproducible (the
+// same bytes on a given architecture; Go may fuse multiply–adds on some)
+// and needs memory bounded by the block size, not by its length. The
 // scenario also describes itself (Truth), which the demo and its tests
 // compare the measurements against.
 //
@@ -60,14 +61,20 @@
 //
 // # The scenario and the bench test
 //
-// [Band] returns the evening-band scene: several SSB stations (upper and
-// lower sideband, different voices and levels, one drifting slowly in
-// frequency), an AM station, a steady carrier, a keyed carrier and white
-// band noise, modulated with package modem and summed into one complex
-// baseband capture. [Bench] composes a two-tone test transmission
+// [NewBand] returns the evening-band scene (DefaultBandConfig: 24 s at
+// 48 kHz around 7.150 MHz): four SSB stations (upper and lower sideband,
+// different voices and levels, one drifting slowly in frequency), an AM
+// station, a steady carrier, a keyed carrier and white band noise. The
+// voices are made at 8 kHz, modulated with modem.NewModulator (phasing,
+// its default splitter, audio band 300–2700 Hz), mixed to their offsets and
+// summed with the noise into one complex baseband capture. [NewBench]
+// composes a two-tone test transmission
 // directly as complex exponentials with exactly injected imperfections: an
 // opposite sideband, a carrier leak, third-order intermodulation and an
-// I/Q imbalance of the capturing receiver, y = μx + νx* with
+// I/Q imbalance of the capturing receiver. The carrier sits 6 kHz off the
+// centre so that the receiver's image of the transmission falls outside
+// the measured sidebands: the opposite sideband and the receiver imbalance
+// are then separately measurable. The imbalance is y = μx + νx* with
 //
 //	μ = (1 + g·e^{−jφ})/2,  ν = (1 − g·e^{jφ})/2,
 //
