@@ -211,3 +211,19 @@ func FuzzParseChannelSpec(f *testing.F) {
 		}
 	})
 }
+
+// BenchmarkRawDecodeCU8 measures the worker-side cu8 decoder of the raw
+// fast path (bytes counted as input).
+func BenchmarkRawDecodeCU8(b *testing.B) {
+	_, dec := rawDecoder(iq.CU8)
+	src := make([]byte, 2<<16)
+	for i := range src {
+		src[i] = byte(i * 7)
+	}
+	dst := make([]complex64, 1<<16)
+	b.SetBytes(int64(len(src)))
+	b.ReportAllocs()
+	for b.Loop() {
+		dec(dst, src)
+	}
+}
