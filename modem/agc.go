@@ -71,16 +71,21 @@ func (m AGCMode) Timing() AGCTiming {
 
 // AGC targets and limits (common practice).
 const (
-	agcTargetPeak = 0.5   // output peak the AGC aims at, −6 dBFS
-	agcMaxGainDB  = 80    // most gain the AGC applies
-	agcLookahead  = 0.004 // s: the audio is delayed this much so the gain drops before a peak
+	agcTargetPeak = 0.5 // output peak the AGC aims at, −6 dBFS
+	agcMaxGainDB  = 80  // most gain the AGC applies
+	// agcLookahead is the look-ahead in attack time constants: the audio is
+	// delayed so long that the envelope has risen to 1 − e⁻⁵ (99.3 %) of a
+	// sudden peak before the peak leaves the delay line.
+	agcLookahead = 5
 )
 
 // AGC is a peak-following automatic gain control with look-ahead: the
-// envelope e follows |x| up with the attack time constant, holds for the
+// envelope e follows the peak of |x| over the look-ahead window (five
+// attack time constants) up with the attack time constant, holds for the
 // hang time, then decays exponentially at the decay rate; the output is
 // x delayed by the look-ahead times target/e (at most agcMaxGainDB), so a
-// sudden onset is already turned down when it leaves the delay line.
+// peak has been seen for five time constants, and turned down to within
+// 0.7 % of the target, when it leaves the delay line.
 type AGC struct {
 	t            AGCTiming
 	aAttack      float64 // one-pole coefficient of the attack
@@ -90,6 +95,12 @@ type AGC struct {
 	floor        float64 // env below which the gain saturates
 	line         []float32
 	pos          int
+	// sliding maximum of |x| over the look-ahead (a monotonic queue of
+	// sample numbers and values, ring buffers of the look-ahead's length)
+	qi    []int64
+	qv    []float64
+	qh, n int   // head and length of the queue
+	cnt   int64 // samples seen
 }
 
 // NewAGC returns an AGC with timing t at rate Hz. It panics if t.Attack or
@@ -103,8 +114,10 @@ func NewAGC(t AGCTiming, rate float64) *AGC {
 		decay:   math.Pow(10, -t.Decay/20/rate),
 		hangN:   int(t.Hang * rate),
 		floor:   agcTargetPeak * math.Pow(10, -agcMaxGainDB/20.0),
-		line:    make([]float32, max(1, int(math.Round(agcLookahead*rate)))),
+		line:    make([]float32, max(1, int(math.Round(agcLookahead*t.Attack*rate)))),
 	}
+	a.qi = make([]int64, len(a.line)+1)
+	a.qv = make([]float64, len(a.line)+1)
 	a.Reset()
 	return a
 }
@@ -118,6 +131,24 @@ func (a *AGC) Reset() {
 	a.hangC = 0
 	a.pos = 0
 	clear(a.line)
+	a.qh, a.n, a.cnt = 0, 0, 0
+}
+
+// peak pushes |x| and returns the largest of the last len(line) values.
+func (a *AGC) peak(v float64) float64 {
+	c := len(a.qi)
+	for a.n > 0 && a.qv[(a.qh+a.n-1)%c] <= v {
+		a.n--
+	}
+	k := (a.qh + a.n) % c
+	a.qi[k], a.qv[k] = a.cnt, v
+	a.n++
+	if a.qi[a.qh] <= a.cnt-int64(len(a.line)) {
+		a.qh = (a.qh + 1) % c
+		a.n--
+	}
+	a.cnt++
+	return a.qv[a.qh]
 }
 
 // GainDB returns the gain now applied, in dB.
@@ -131,7 +162,7 @@ func (a *AGC) Process(dst, src []float32) []float32 {
 	}
 	dst = dst[:len(src)]
 	for i, x := range src {
-		v := math.Abs(float64(x))
+		v := a.peak(math.Abs(float64(x)))
 		switch {
 		case v > a.env:
 			a.env += a.aAttack * (v - a.env)

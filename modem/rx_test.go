@@ -626,3 +626,31 @@ func TestRoundTrip(t *testing.T) {
 		}
 	}
 }
+
+func TestAGCNoOvershoot(t *testing.T) {
+	// With a look-ahead of five attack time constants the envelope has
+	// reached 1 − e⁻⁵ of any peak before the peak leaves the delay line,
+	// so the output never exceeds target/(1 − e⁻⁵) (the construction of
+	// the AGC; common practice of look-ahead limiters), even for noise
+	// bursts that jump by 40 dB.
+	limit := agcTargetPeak / (1 - math.Exp(-5))
+	r := rand.New(rand.NewPCG(4, 4))
+	x := make([]float32, 48000*3)
+	for i := range x {
+		lv := 0.001
+		if (i/4000)%3 == 1 {
+			lv = 0.1
+		}
+		x[i] = float32(lv * r.NormFloat64())
+	}
+	for _, m := range []AGCMode{AGCSlow, AGCMedium, AGCFast} {
+		y := NewAGC(m.Timing(), 48000).Process(nil, x)
+		var pk float64
+		for _, v := range y {
+			pk = max(pk, math.Abs(float64(v)))
+		}
+		if pk > limit {
+			t.Errorf("%v: output peak %.4f above %.4f", m, pk, limit)
+		}
+	}
+}
