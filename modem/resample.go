@@ -285,6 +285,33 @@ func (s *cstage) process(dst, src []complex64) []complex64 {
 	}
 	for j < c {
 		w := buf[j : j+k]
+		// Interpolation: two phases per pass share the loads of the
+		// window.
+		for down == 1 && p+1 < up {
+			h := s.ph[p*k : p*k+2*k]
+			g := h[k:]
+			h = h[:k]
+			w := w[:len(h)]
+			g = g[:len(h)]
+			var r0, i0, r1, i1, q0, u0, q1, u1 float32
+			for t := 0; t+1 < len(h); t += 2 {
+				a, b := w[t], w[t+1]
+				ar, ai, br, bi := real(a), imag(a), real(b), imag(b)
+				h0, h1, g0, g1 := h[t], h[t+1], g[t], g[t+1]
+				r0 += h0 * ar
+				i0 += h0 * ai
+				r1 += h1 * br
+				i1 += h1 * bi
+				q0 += g0 * ar
+				u0 += g0 * ai
+				q1 += g1 * br
+				u1 += g1 * bi
+			}
+			d[n] = complex(r0+r1, i0+i1)
+			d[n+1] = complex(q0+q1, u0+u1)
+			n += 2
+			p += 2
+		}
 		for p < up {
 			h := s.ph[p*k : p*k+k]
 			w := w[:len(h)]
