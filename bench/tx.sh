@@ -1,0 +1,81 @@
+#!/usr/bin/env bash
+# tx section of the benchmark: ssbkit tx side by side with
+# ../shared/bench/modulate_usb.py on the same audio, in one run.
+#
+#   bench/tx.sh [RUNS]
+#
+# Job: 60 s of 48 kHz audio (audio_60s.wav from gen_capture.py) to USB at
+# 2.4 MS/s cf32, whole process against whole process. Runs ssbkit and the
+# reference (its default: FFT Hilbert, BLAS polyphase upsampler) alternately,
+# RUNS times each (default 3), prints wall seconds, output MS/s and peak
+# resident memory (GNU time), then the opposite-sideband suppression of both
+# outputs measured by bench/tx_sideband.py (scipy Welch spectrum, first 10 s).
+# The machine is shared: quote ratios from one run.
+set -euo pipefail
+
+here=$(cd "$(dirname "$0")" && pwd)
+root=$(cd "$here/.." && pwd)
+refdir=${REFDIR:-$root/../shared/bench}
+DATA=${DATA:-${TMPDIR:-/tmp}/iqperf}
+export DATA
+PY=/usr/bin/python3
+runs=${1:-3}
+work=$(mktemp -d)
+trap 'rm -rf "$work"' EXIT
+
+if [ ! -x /usr/bin/time ]; then
+	echo "installing GNU time (peak memory accounting)" >&2
+	apt-get install -y time >/dev/null 2>&1 || { apt-get update >/dev/null && apt-get install -y time >/dev/null; }
+fi
+if ! $PY -c 'import numpy, scipy' 2>/dev/null; then
+	echo "installing python3-scipy (the reference pipeline)" >&2
+	apt-get install -y python3-scipy >/dev/null 2>&1 || { apt-get update >/dev/null && apt-get install -y python3-scipy >/dev/null; }
+fi
+echo "building ssbkit" >&2
+(cd "$root" && go build -o "$work/ssbkit" ./cmd/ssbkit)
+ssbkit=$work/ssbkit
+audio=$DATA/audio_60s.wav
+if [ ! -s "$audio" ]; then
+	echo "generating the test data in $DATA (about 90 s, once)" >&2
+	$PY "$refdir/gen_capture.py"
+fi
+cat "$audio" >/dev/null
+outsamples=144000000 # 60 s at 2.4 MS/s
+
+timed() {
+	local name=$1 out=$2
+	shift 2
+	/usr/bin/time -f '%e %M' -o "$work/time" "$@" >/dev/null 2>"$work/err" || {
+		cat "$work/err" >&2
+		return 1
+	}
+	read -r secs kb <"$work/time"
+	echo "$secs $kb" >>"$out"
+	awk -v n="$name" -v s="$secs" -v k="$kb" -v ns="$outsamples" \
+		'BEGIN { printf "  %-30s %6.2f s  %7.1f MS/s out  %6.1f MB peak\n", n, s, ns / s / 1e6, k / 1024 }'
+}
+best() { sort -n "$1" | head -1 | cut -d' ' -f1; }
+peak() { sort -k2 -n "$1" | tail -1 | cut -d' ' -f2; }
+
+echo "audio: $audio; $(nproc) cores; load: $(cut -d' ' -f1-3 /proc/loadavg)"
+echo
+echo "== tx: 60 s of 48 kHz audio to USB at 2.4 MS/s cf32 (ssbkit tx vs modulate_usb.py)"
+s=$work/tx_ssbkit r=$work/tx_ref
+: >"$s"; : >"$r"
+for i in $(seq "$runs"); do
+	rm -f "$work/a.cf32" "$work/b.cf32"
+	timed "ssbkit tx (run $i)" "$s" "$ssbkit" tx "$audio" --rate 2.4M -q -o "$work/a.cf32"
+	rm -f "$work/a.cf32"
+	timed "modulate_usb.py (run $i)" "$r" $PY "$refdir/modulate_usb.py" "$audio" "$work/b.cf32"
+	rm -f "$work/b.cf32"
+done
+awk -v a="$(best "$s")" -v b="$(best "$r")" -v ns="$outsamples" -v pa="$(peak "$s")" -v pb="$(peak "$r")" 'BEGIN {
+	printf "  best: ssbkit %.2f s (%.1f MS/s), reference %.2f s (%.1f MS/s): ssbkit is %.2fx the reference\n", a, ns/a/1e6, b, ns/b/1e6, b/a
+	printf "  peak memory: ssbkit %.1f MB, reference %.1f MB\n", pa/1024, pb/1024 }'
+echo "  opposite-sideband suppression (goal ≥ 60 dB; reference: FFT mode ≈ 90 dB, FIR mode ≈ 46 dB):"
+"$ssbkit" tx "$audio" --rate 2.4M -q -o "$work/a.cf32"
+echo "    ssbkit:    $($PY "$here/tx_sideband.py" "$work/a.cf32" 2.4e6)"
+rm -f "$work/a.cf32"
+$PY "$refdir/modulate_usb.py" "$audio" "$work/b.cf32"
+echo "    reference: $($PY "$here/tx_sideband.py" "$work/b.cf32" 2.4e6)"
+rm -f "$work/b.cf32"
