@@ -54,5 +54,42 @@
 // few taps. The planner tries the rational stage first (upsampling) or last
 // (downsampling) with every split of the integer remainder into at most two
 // factors and keeps the chain with the fewest multiply-adds per second;
-// 8 kHz → 2.4 MHz with P = 2.7 kHz becomes ×4 then ×75.
+// 8 kHz → 2.4 MHz with P = 2.7 kHz becomes ×4 then ×75. Interpolation
+// stages compute two phases per pass over the input window (shared loads)
+// with the taps of a phase padded to a multiple of four.
+//
+// # Transmit chain
+//
+// Modulator runs
+//
+//	audio (any rate) → RealResampler → band-pass → modulation → gain
+//	  → Resampler → Oscillator mix to the offset
+//
+// The audio is brought to a low internal rate fi (8 kHz for the default
+// 300–2700 Hz band; the lowest of 8, 12, 16, 24 … kHz with
+// fi ≥ 2·High + 2.6 kHz otherwise), where a Kaiser band-pass
+// (KaiserBandpass, 200 Hz transitions, 70 dB) limits it and the phase
+// splitter of package hilbert works where 300 Hz is not a tiny fraction of
+// the rate — the figures of "ssbkit sweep" at 8 kHz apply unchanged. The
+// default splitter, equiripple with 63 taps, predicts 81 dB of
+// opposite-sideband suppression over 300–2700 Hz. Then:
+//
+//	usb: x = g·(z + c),  z = a + j·H{a} (the splitter's analytic signal)
+//	lsb: x = g·(z + c)*  (the complex conjugate: the mirror image)
+//	am:  x = g·(P/m + a), P the audio's band-limited peak, m the depth
+//	dsb: x = g·a
+//
+// so that a tone a·cos(2πft) becomes, in usb with g = 1, a·e^{j2πft} (the
+// unity convention of the design). A usb/lsb carrier at C dB relative to
+// PEP (R3E, H3E) is c = k·E/(1 − k) with k = 10^(C/20) and E the peak of
+// |z|, which makes c/(E + c) = k. The complex baseband is resampled from fi
+// to the output rate keeping |f| ≤ High with 90 dB of image rejection, and
+// mixed to the offset. Survey measures P and E in a first pass (8×
+// interpolated so that peaks between samples count), for the depth, the
+// carrier and peak normalisation.
+//
+// Delay reports the whole chain's delay in output samples; a caller that
+// drops the first round(Delay) samples to align I/Q and audio sets the
+// carrier phase with SetCarrierPhase so that it is 0 at the first kept
+// sample. Every stage streams, so memory is bounded by the block size.
 package modem
