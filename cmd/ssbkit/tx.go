@@ -67,7 +67,7 @@ func runTx(e *env, args []string) error {
 	seconds := fs.Float64("seconds", 10, "length of the test tones in seconds")
 	mode := fs.String("mode", "usb", "modulation: usb, lsb, am, dsb")
 	method := fs.String("method", "phasing", "SSB method: phasing, weaver")
-	design := fs.String("design", modem.DefaultSplitterDesign, "phase splitter: "+strings.Join(hilbert.Designs[:7], ", "))
+	design := fs.String("design", modem.DefaultSplitterDesign, "phase splitter: "+strings.Join(hilbert.Designs[:7], ", ")+" (with --band off: allpass, 12 sections)")
 	taps := fs.Int("taps", 0, fmt.Sprintf("splitter length: FIR taps (odd), Weaver low-pass taps or FFT block size (default %d; fft 1024)", modem.DefaultSplitterTaps))
 	sections := fs.Int("sections", 0, "all-pass sections per path for --design allpass (default 6)")
 	band := fs.String("band", "300:2700", "audio pass band LOW:HIGH in Hz, or off")
@@ -145,7 +145,10 @@ func runTx(e *env, args []string) error {
 	if cfg.Method == "weaver" && fs.Changed("design") {
 		return usagef("--design does not apply to --method weaver (use --taps for its low-pass)")
 	}
-	cfg.Splitter = hilbert.Spec{Design: *design, Taps: *taps, Sections: *sections}
+	cfg.Splitter = hilbert.Spec{Taps: *taps, Sections: *sections}
+	if fs.Changed("design") {
+		cfg.Splitter.Design = *design
+	}
 	if *design == "weaver" {
 		return usagef("--design weaver: use --method weaver")
 	}
@@ -469,6 +472,9 @@ func runTx(e *env, args []string) error {
 	if !*quiet {
 		fmt.Fprintf(e.stderr, "tx: %s %s, %d samples at %g Hz (%.2f s): PEP %.2f dBFS, average %.2f dBFS, PEP-to-average %.2f dB\n",
 			*out, strings.ToUpper(cfg.Mode), written, cfg.OutRate, rep.DurationS, rep.PEPdBFS, rep.AverageDBFS, rep.PEPToAverageDB)
+		if rep.SuppressionDB > 0 && rep.SuppressionDB < 60 {
+			fmt.Fprintf(e.stderr, "tx: warning: the splitter's predicted opposite-sideband suppression is only %.1f dB over %g:%g Hz (more --taps or --sections raise it)\n", rep.SuppressionDB, lo, hi)
+		}
 		if pep > 1 {
 			fmt.Fprintf(e.stderr, "tx: warning: PEP above full scale; integer formats clip\n")
 		}
