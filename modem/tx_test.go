@@ -258,6 +258,7 @@ func TestTxSuppressionMatchesSplitter(t *testing.T) {
 			if want > 100 {
 				continue
 			}
+			t.Logf("%s %s at %g Hz: measured %.2f dB, predicted %.2f dB", c.method, sp.Spec().Design, f, got, want)
 			if math.Abs(got-want) > tolDB {
 				t.Errorf("%s %s: at %g Hz measured %.2f dB, predicted %.2f dB", c.method, sp.Spec().Design, f, got, want)
 			}
