@@ -316,7 +316,9 @@ func runTx(e *env, args []string) error {
 	default:
 		edgeLo, edgeHi = -hi, hi
 	}
-	emission := map[string]string{"usb": "J3E", "lsb": "J3E", "am": "A3E", "dsb": "B8E"}[cfg.Mode]
+	// ITU emission classes: J3E SSB suppressed carrier, A3E double
+	// sideband (with or without carrier), R3E/H3E reduced/full carrier.
+	emission := map[string]string{"usb": "J3E", "lsb": "J3E", "am": "A3E", "dsb": "A3E"}[cfg.Mode]
 	if cfg.Carrier {
 		emission = "R3E"
 		if cfg.CarrierDB > -6.1 {
