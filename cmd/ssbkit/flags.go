@@ -17,9 +17,8 @@ func newFlagSet(e *env, name, usage, examples string) *pflag.FlagSet {
 	fs.Usage = func() {
 		w := e.stdout
 		fmt.Fprintf(w, "Usage:\n  %s\n\nFlags:\n", strings.TrimSpace(usage))
-		fs.SetOutput(w)
-		fs.PrintDefaults()
-		fs.SetOutput(e.stderr)
+		// pflag spells boolean flags "--json[=true|false]"; users type --json.
+		fmt.Fprint(w, strings.ReplaceAll(fs.FlagUsages(), "[=true|false]", ""))
 		if examples != "" {
 			fmt.Fprintf(w, "\n%s\n", strings.TrimRight(examples, "\n"))
 		}
