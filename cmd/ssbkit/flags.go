@@ -18,7 +18,7 @@ func newFlagSet(e *env, name, usage, examples string) *pflag.FlagSet {
 		w := e.stdout
 		fmt.Fprintf(w, "Usage:\n  %s\n\nFlags:\n", strings.TrimSpace(usage))
 		// pflag spells boolean flags "--json[=true|false]"; users type --json.
-		fmt.Fprint(w, strings.ReplaceAll(fs.FlagUsages(), "[=true|false]", ""))
+		fmt.Fprint(w, strings.ReplaceAll(fs.FlagUsages(), "[=true|false]", "             "))
 		if examples != "" {
 			fmt.Fprintf(w, "\n%s\n", strings.TrimRight(examples, "\n"))
 		}
