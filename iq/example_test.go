@@ -3,8 +3,11 @@ package iq_test
 import (
 	"bytes"
 	"fmt"
+	"io"
 	"math"
 	"math/cmplx"
+	"os"
+	"path/filepath"
 
 	"ssbkit/iq"
 )
@@ -94,4 +97,66 @@ func ExampleAnalytic() {
 	fmt.Printf("magnitude %.3f\n", cmplx.Abs(complex128(v)))
 	// Output:
 	// magnitude 0.500
+}
+
+// Reading a SigMF recording block by block: Read fills the caller's slice
+// and returns io.EOF after the last sample, so a capture of any size is
+// read in bounded memory. Here a tone of amplitude 0.5 (−6.02 dBFS) is
+// written as ci16_le and its level measured on the way back.
+func ExampleSource_Read() {
+	dir, err := os.MkdirTemp("", "iq-example")
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	defer os.RemoveAll(dir)
+	base := filepath.Join(dir, "tone")
+
+	// Write the recording: a data file and its metadata.
+	const rate, n = 48000, 10000
+	tone := make([]complex64, n)
+	for i := range tone {
+		tone[i] = complex64(cmplx.Rect(0.5, 2*math.Pi*1000*float64(i)/rate))
+	}
+	data, _ := os.Create(base + ".sigmf-data")
+	w, _ := iq.NewRawWriter(data, iq.CI16)
+	w.Write(tone)
+	w.Close()
+	data.Close()
+	meta, _ := os.Create(base + ".sigmf-meta")
+	iq.WriteSigMFMeta(meta, iq.Meta{Datatype: iq.CI16, Rate: rate, Center: 7.1e6, HasCenter: true})
+	meta.Close()
+
+	// Read it back, either name will do, 4096 samples at a time.
+	src, err := iq.Open(base+".sigmf-meta", iq.Options{})
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	defer src.Close()
+	m := src.Meta()
+	fmt.Printf("%s, %.0f Hz, centre %.3f MHz, %d samples\n", m.Datatype, m.Rate, m.Center/1e6, m.Samples)
+	var st iq.Stats
+	buf := make([]complex64, 4096)
+	for {
+		k, err := src.Read(buf)
+		if k > 0 {
+			st.Add(buf[:k])
+			fmt.Println("block of", k)
+		}
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			fmt.Println(err)
+			return
+		}
+	}
+	fmt.Printf("RMS %.2f dBFS, clipped %d\n", st.RMSDBFS(), src.Clipped())
+	// Output:
+	// ci16_le, 48000 Hz, centre 7.100 MHz, 10000 samples
+	// block of 4096
+	// block of 4096
+	// block of 1808
+	// RMS -6.02 dBFS, clipped 0
 }

@@ -4,6 +4,7 @@ import (
 	"encoding/binary"
 	"math"
 	"path/filepath"
+	"strconv"
 	"strings"
 )
 
@@ -369,4 +370,6 @@ func quantize(x float32, scale, offset float64, lo, hi int32) (int32, int) {
 	return int32(v), 0
 }
 
-func quote(s string) string { return "\"" + s + "\"" }
+// quote returns s in Go quotes, control characters escaped, so an error
+// naming it stays one line.
+func quote(s string) string { return strconv.Quote(s) }

@@ -111,6 +111,10 @@ func Open(path string, opt Options) (*Source, error) {
 	container := ContainerOf(path)
 	if container == "" || (container == ContainerRaw && opt.Format != "") {
 		if opt.Format == "" {
+			// A missing file is the likelier mistake: say so first.
+			if _, err := os.Stat(path); err != nil {
+				return nil, errorWithoutOp(path, err)
+			}
 			return nil, fmt.Errorf("%s: unknown extension: give --format (cu8, ci8, ci16_le, cf32_le, rf32_le, ri16_le)", path)
 		}
 		container = ContainerRaw
@@ -188,7 +192,7 @@ func newRawSource(name string, r io.Reader, opt Options, size int64) (*Source, e
 	}
 	ss := dt.SampleSize()
 	if size >= 0 && size%int64(ss) != 0 {
-		return nil, formatErr(name, -1, "size %d bytes is not a whole number of %d-byte %s samples (%d bytes left over): wrong --format or a cut file", size, ss, dt, size%int64(ss))
+		return nil, formatErr(name, -1, "size %d bytes is not a whole number of %d-byte %s samples (%s left over): wrong --format or a cut file", size, ss, dt, plural(size%int64(ss), "byte"))
 	}
 	m := Meta{Datatype: dt, Rate: opt.Rate, Center: opt.Center, HasCenter: opt.HasCenter, Real: dt.IsReal(), Samples: -1, Container: ContainerRaw}
 	if size >= 0 {
@@ -291,7 +295,7 @@ func openSigMF(path string, opt Options) (*Source, error) {
 	ss := int64(m.Datatype.SampleSize())
 	if size%ss != 0 {
 		f.Close()
-		return nil, formatErr(dataPath, -1, "size %d bytes is not a whole number of %d-byte %s samples (%d bytes left over)", size, ss, m.Datatype, size%ss)
+		return nil, formatErr(dataPath, -1, "size %d bytes is not a whole number of %d-byte %s samples (%s left over)", size, ss, m.Datatype, plural(size%ss, "byte"))
 	}
 	m.Samples = size / ss
 	s := newSource(dataPath, f, m, m.Datatype, size)
@@ -451,4 +455,12 @@ func (s *Source) readReal(dst []complex64) (int, error) {
 		return 0, io.EOF
 	}
 	return n, nil
+}
+
+// plural returns "1 byte", "2 bytes" and so on.
+func plural(n int64, unit string) string {
+	if n == 1 {
+		return "1 " + unit
+	}
+	return fmt.Sprintf("%d %ss", n, unit)
 }

@@ -26,6 +26,10 @@ func TestOpenBad(t *testing.T) {
 		want string
 	}{
 		{filepath.Join(dir, "missing.cf32"), Options{Rate: 1}, "no such file"},
+		// A missing file with no known extension is reported as missing,
+		// not as an extension problem.
+		{filepath.Join(dir, "missing"), Options{}, "missing: no such file"},
+		{write("one-over.cu8", make([]byte, 7)), Options{Rate: 1}, "(1 byte left over)"},
 		{write("empty.cu8", nil), Options{Rate: 1}, "empty file"},
 		{write("odd.cs16", make([]byte, 10)), Options{Rate: 1}, "size 10 bytes is not a whole number of 4-byte ci16_le samples (2 bytes left over)"},
 		{write("norate.cu8", make([]byte, 10)), Options{}, "give --rate"},
