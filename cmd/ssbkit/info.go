@@ -67,6 +67,10 @@ func runInfo(e *env, args []string) error {
 		return err
 	}
 	rep.File = path
+	if rep.NonFinite > 0 {
+		// Reported, not fatal: info's job is to describe the capture.
+		fmt.Fprintf(e.stderr, "ssbkit: info: warning: %s: %d NaN or Inf values (read as 0 in these figures)\n", src.Name(), rep.NonFinite)
+	}
 	if *jsonOut {
 		enc := json.NewEncoder(e.stdout)
 		enc.SetIndent("", "  ")

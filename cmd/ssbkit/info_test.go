@@ -131,11 +131,15 @@ func TestInfoBad(t *testing.T) {
 		want string
 	}{
 		{[]string{"info", filepath.Join(dir, "missing.wav")}, exitFailure, "no such file"},
+		{[]string{"info", filepath.Join(dir, "missing")}, exitFailure, "missing: no such file"},
 		{[]string{"info", write("empty.cf32", nil)}, exitFailure, "empty file"},
 		{[]string{"info", "--rate", "1k", write("odd.cs16", make([]byte, 6))}, exitFailure, "not a whole number"},
 		{[]string{"info", write("norate.cu8", make([]byte, 6))}, exitFailure, "--rate"},
 		{[]string{"info", write("bad.sigmf-meta", []byte(`{"global": {"core:datatype": "cu8",}}`))}, exitFailure, "line 1, column 36"},
 		{[]string{"info", write("nodt.sigmf-meta", []byte(`{"global": {"core:version": "1.0.0"}}`))}, exitFailure, "core:datatype"},
+		{[]string{"info", write("cf64.sigmf-meta", []byte(`{"global": {"core:datatype": "cf64_le"}}`))}, exitFailure, `unsupported SigMF core:datatype "cf64_le"`},
+		// Format tag 2 (Microsoft ADPCM) in an otherwise valid header.
+		{[]string{"info", write("adpcm.wav", []byte("RIFF\x28\x00\x00\x00WAVEfmt \x10\x00\x00\x00\x02\x00\x02\x00\x40\x1f\x00\x00\x00\x7d\x00\x00\x04\x00\x10\x00data\x04\x00\x00\x00\x00\x00\x00\x00"))}, exitFailure, "unsupported WAV encoding (format tag 0x2"},
 		{[]string{"info", write("three.wav", []byte("RIFF\x28\x00\x00\x00WAVEfmt \x10\x00\x00\x00\x01\x00\x03\x00\x40\x1f\x00\x00\xc0\x5d\x00\x00\x06\x00\x10\x00data\x06\x00\x00\x00\x00\x00\x00\x00\x00\x00"))}, exitFailure, "3 channels"},
 		{[]string{"info"}, exitUsage, "want one CAPTURE"},
 		{[]string{"info", "--rate", "fast", "x.cu8"}, exitUsage, "--rate"},
@@ -147,10 +151,16 @@ func TestInfoBad(t *testing.T) {
 			t.Errorf("%v: exit %d, stderr %q; want %d and one line with %q", c.args, code, errs, c.code, c.want)
 		}
 	}
-	// NaN/Inf are reported, not fatal, in info.
-	m := infoJSON(t, "--rate", "1k", write("inf.cf32", nan))
-	if m["nonfinite"] != 1.0 {
-		t.Errorf("nonfinite = %v, want 1", m["nonfinite"])
+	// NaN/Inf are reported, not fatal, in info: counted in the report and
+	// warned about in one line on stderr.
+	infPath := write("inf.cf32", nan)
+	code, out, errs := runCmd(t, "info", "--json", "--rate", "1k", infPath)
+	var m map[string]any
+	if code != exitOK || json.Unmarshal([]byte(out), &m) != nil || m["nonfinite"] != 1.0 {
+		t.Errorf("inf.cf32: exit %d, report %s", code, out)
+	}
+	if want := "ssbkit: info: warning: " + infPath + ": 1 NaN or Inf values"; !strings.HasPrefix(errs, want) || strings.Count(errs, "\n") != 1 {
+		t.Errorf("inf.cf32: stderr %q, want one line starting %q", errs, want)
 	}
 }
 
