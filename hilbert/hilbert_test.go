@@ -236,18 +236,18 @@ func TestAnalyzeMinimumRefined(t *testing.T) {
 type remezGolden struct {
 	ScipyVersion string `json:"scipy_version"`
 	Cases        []struct {
-		Taps            int
-		Rate, Low, High float64
-		H               []float64
+		Taps             int
+		Rate, Low, High  float64
+		H                []float64
+		SuppressionMinDB float64 `json:"suppression_min_db"`
 	}
+	// Remez63DefaultGrid is the minimum suppression over 300–2700 Hz of
+	// scipy's 63-tap design with its default grid density.
+	Remez63DefaultGrid float64 `json:"remez63_default_grid_suppression_min_db"`
 }
 
-func TestEquirippleGolden(t *testing.T) {
-	// Golden taps from scipy.signal.remez(type='hilbert') on a dense grid
-	// (testdata/golden.py, scipy 1.10.1). scipy's Hilbert taps have the
-	// opposite sign to ours: it returns +90° at positive frequencies, so
-	// our q[k] = −scipy[k].
-	const tol = 1e-6
+func readRemezGolden(t *testing.T) remezGolden {
+	t.Helper()
 	b, err := os.ReadFile("testdata/remez_golden.json")
 	if err != nil {
 		t.Fatal(err)
@@ -259,6 +259,16 @@ func TestEquirippleGolden(t *testing.T) {
 	if g.ScipyVersion != "1.10.1" || len(g.Cases) < 3 {
 		t.Fatalf("golden file: scipy %q, %d cases", g.ScipyVersion, len(g.Cases))
 	}
+	return g
+}
+
+func TestEquirippleGolden(t *testing.T) {
+	// Golden taps from scipy.signal.remez(type='hilbert') on a dense grid
+	// (testdata/golden.py, scipy 1.10.1). scipy's Hilbert taps have the
+	// opposite sign to ours: it returns +90° at positive frequencies, so
+	// our q[k] = −scipy[k].
+	const tol = 1e-6
+	g := readRemezGolden(t)
 	for _, c := range g.Cases {
 		sp := mustNew(t, Spec{Design: "equiripple", Taps: c.Taps, Rate: c.Rate, Low: c.Low, High: c.High})
 		_, q, _ := Coefficients(sp)
@@ -270,16 +280,44 @@ func TestEquirippleGolden(t *testing.T) {
 	}
 }
 
+func TestEquirippleGoldenSuppression(t *testing.T) {
+	// Analyze's minimum suppression of each equiripple design against the
+	// minimum that testdata/golden.py computes with numpy for scipy's taps
+	// on a 200001-point grid (scipy 1.10.1). Our taps equal scipy's within
+	// 1e-6 (TestEquirippleGolden), so the figures must agree within the
+	// 0.05 dB DESIGN.md asks of the band minimum.
+	const tolDB = 0.05
+	g := readRemezGolden(t)
+	for _, c := range g.Cases {
+		sp := mustNew(t, Spec{Design: "equiripple", Taps: c.Taps, Rate: c.Rate, Low: c.Low, High: c.High})
+		got := Analyze(sp, c.Low, c.High).SuppressionMinDB
+		if math.Abs(got-c.SuppressionMinDB) > tolDB {
+			t.Errorf("%d taps, %g–%g Hz at %g Hz: min suppression %.3f dB, scipy/numpy %.3f dB", c.Taps, c.Low, c.High, c.Rate, got, c.SuppressionMinDB)
+		}
+	}
+}
+
 func TestEquiripple63(t *testing.T) {
-	// 63 taps, 8 kHz, 300–2700 Hz: at least 80 dB (issue 3; scipy's
-	// design for 300–3700 Hz reaches 81.0 dB there). The error must also
-	// be equiripple: all in-band extrema of |1 − A| equal within 1 %
-	// (Parks & McClellan alternation theorem).
+	// 63 taps, 8 kHz, 300–2700 Hz: at least 80 dB (issue 3), and no worse
+	// than scipy.signal.remez's design for 300–3700 Hz with its default
+	// grid, which reaches 81.03 dB there (testdata/golden.py, scipy
+	// 1.10.1; the issue quotes 81.0 dB). The error must also be
+	// equiripple: all in-band extrema of |1 − A| equal within 1 % (Parks
+	// & McClellan alternation theorem).
+	const (
+		floorDB = 80   // issue 3
+		tolDB   = 0.05 // DESIGN.md: band minimum right to 0.05 dB
+	)
 	sp := mustNew(t, spec("equiripple", 63))
 	a := Analyze(sp, 300, 2700)
-	if a.SuppressionMinDB < 80 {
-		t.Errorf("min suppression %.2f dB, want ≥ 80", a.SuppressionMinDB)
+	g := readRemezGolden(t)
+	if math.Abs(g.Remez63DefaultGrid-81.0) > 0.05 {
+		t.Fatalf("golden: scipy's default-grid design reaches %.3f dB, the issue says 81.0", g.Remez63DefaultGrid)
 	}
+	if a.SuppressionMinDB < floorDB || a.SuppressionMinDB < g.Remez63DefaultGrid-tolDB {
+		t.Errorf("min suppression %.2f dB, want ≥ %v and ≥ scipy's %.2f dB", a.SuppressionMinDB, floorDB, g.Remez63DefaultGrid)
+	}
+	t.Logf("63 taps, 300–2700 Hz at 8 kHz: %.2f dB (scipy default grid %.2f dB)", a.SuppressionMinDB, g.Remez63DefaultGrid)
 	f := sp.(*firSplitter)
 	peaks := extremaOf(func(x float64) float64 { return math.Abs(1 - f.amplitude(2*math.Pi*x/8000)) }, 300, 3700, 20000)
 	checkEqual(t, "equiripple |1−A|", peaks, 0.01)
@@ -505,32 +543,61 @@ func TestNoAllocs(t *testing.T) {
 
 func TestEnvelopeRipple(t *testing.T) {
 	// A residual opposite sideband of relative amplitude r makes the
-	// envelope |x| of a tone ripple by ±r; −20 dB suppression means about
-	// 10 % amplitude error (common practice). Measured through the filter.
-	const tolRel = 0.05
+	// envelope |x| of a tone ripple by ±r, since |1 + r·e^{jθ}| runs from
+	// 1 − r to 1 + r; −20 dB suppression means about 10 % amplitude error
+	// when measuring an instantaneous amplitude as |x| (common practice).
+	// Measured through the streaming filter of a short rectangular design,
+	// whose suppression is poor near the band's low edge.
+	const (
+		tolRel   = 0.05 // relative to r: the band edge of the design adds a little in-band ripple
+		target   = 20.0 // dB of suppression for the 10 % case
+		wantR20  = 0.10 // the common-practice figure at −20 dB
+		tolR20   = 0.005
+		settle   = 100 // samples: several filter lengths
+		nSamples = 4000
+	)
 	sp := mustNew(t, Spec{Design: "rect", Taps: 7, Rate: 8000, Low: 300, High: 3700})
-	for _, f := range []float64{450, 600, 900} {
-		r := cmplx.Abs(sp.Response(-f)) / cmplx.Abs(sp.Response(f))
+	ripple := func(f float64) float64 {
 		w := 2 * math.Pi * f / 8000
-		src := make([]float32, 3000)
+		src := make([]float32, nSamples)
 		for i := range src {
 			src[i] = float32(math.Cos(w * float64(i)))
 		}
 		dst := sp.NewFilter().Process(nil, src)
 		lo, hi := math.Inf(1), 0.0
-		for _, v := range dst[100:] {
+		for _, v := range dst[settle:] {
 			e := cmplx.Abs(complex128(v))
 			lo, hi = math.Min(lo, e), math.Max(hi, e)
 		}
-		ripple := (hi - lo) / (hi + lo)
-		if math.Abs(ripple-r) > tolRel*r {
-			t.Errorf("%g Hz: envelope ripple ±%.4f, opposite sideband r = %.4f", f, ripple, r)
-		}
-		t.Logf("%g Hz: suppression %.1f dB, envelope ripple ±%.1f %%", f, -20*math.Log10(r), 100*ripple)
+		return (hi - lo) / (hi + lo)
 	}
-	// −20 dB → r = 0.1: about 10 % (common practice).
-	if r := math.Pow(10, -20.0/20); math.Abs(r-0.1) > 1e-12 {
-		t.Errorf("r(−20 dB) = %g", r)
+	for _, f := range []float64{450, 600, 900} {
+		r := cmplx.Abs(sp.Response(-f)) / cmplx.Abs(sp.Response(f))
+		got := ripple(f)
+		if math.Abs(got-r) > tolRel*r {
+			t.Errorf("%g Hz: envelope ripple ±%.4f, opposite sideband r = %.4f", f, got, r)
+		}
+		t.Logf("%g Hz: suppression %.1f dB, envelope ripple ±%.1f %%", f, -20*math.Log10(r), 100*got)
+	}
+	// A frequency where this design suppresses by exactly 20 dB, found by
+	// bisection between one below and one above 20 dB: the envelope there
+	// ripples by about ±10 %.
+	lo, hi := 300.0, 2000.0
+	if SuppressionAt(sp, lo) > target || SuppressionAt(sp, hi) < target {
+		t.Fatalf("20 dB not bracketed: %.1f dB at %g Hz, %.1f dB at %g Hz", SuppressionAt(sp, lo), lo, SuppressionAt(sp, hi), hi)
+	}
+	for range 60 {
+		mid := (lo + hi) / 2
+		if SuppressionAt(sp, mid) < target {
+			lo = mid
+		} else {
+			hi = mid
+		}
+	}
+	if got := ripple(lo); math.Abs(got-wantR20) > tolR20 {
+		t.Errorf("at %.1f Hz (20 dB suppression): envelope ripple ±%.2f %%, want about ±10 %%", lo, 100*got)
+	} else {
+		t.Logf("at %.1f Hz (20 dB suppression): envelope ripple ±%.2f %%", lo, 100*got)
 	}
 }
 
