@@ -52,11 +52,20 @@ func (o *Oscillator) SetFrequency(freq float64) {
 	if math.IsNaN(freq) || math.IsInf(freq, 0) {
 		panic("modem: oscillator frequency must be finite")
 	}
-	p := o.run + uint64(o.k)*o.step
+	o.setStep(phaseStep(freq / o.rate))
 	o.freq = freq
-	o.step = phaseStep(freq / o.rate)
+}
+
+// setStep sets the accumulator step (2⁻⁶⁴ cycles per sample) directly,
+// keeping the phase continuous. An interpolator by U that carries a mixer
+// of step s in its taps premixes its input with step U·s (mod 2⁶⁴), so
+// that the phase at every output is exactly that of the mixer.
+func (o *Oscillator) setStep(step uint64) {
+	p := o.run + uint64(o.k)*o.step
+	o.step = step
+	o.freq = float64(int64(step)) / (1 << 64) * o.rate
 	for k := range o.tab {
-		o.tab[k] = phasor(uint64(k) * o.step)
+		o.tab[k] = phasor(uint64(k) * step)
 	}
 	o.run, o.k, o.base = p, 0, phasor(p)
 }

@@ -252,7 +252,8 @@ func (f *front) reset() {
 type Modulator struct {
 	fr      *front
 	cfg     TxConfig
-	out     *Resampler
+	fold    *offsetResampler // resampler with the offset mixer in its taps
+	out     *Resampler       // otherwise: resampler, then the mixer osc
 	osc     *Oscillator
 	carrier float32 // added to the baseband before gain (usb/lsb/am)
 	phase0  float64 // initial oscillator phase
@@ -274,13 +275,24 @@ func NewModulator(cfg TxConfig) (*Modulator, error) {
 	if math.Abs(cfg.Offset)+fr.pass >= cfg.OutRate/2 {
 		return nil, fmt.Errorf("offset %g Hz puts the signal (±%g Hz) beyond the output band ±%g Hz", cfg.Offset, fr.pass, cfg.OutRate/2)
 	}
-	m.out, err = NewResamplerSpec(ResamplerSpec{InRate: fr.rate, OutRate: cfg.OutRate, Pass: fr.pass, AttenDB: txAttenDB})
-	if err != nil {
-		return nil, err
+	spec := ResamplerSpec{InRate: fr.rate, OutRate: cfg.OutRate, Pass: fr.pass, AttenDB: txAttenDB}
+	// The folded chain pays where the vector kernel runs; the plain Go
+	// loop is slower than the real-tap stages plus a mixer.
+	if useMixInterpAVX2 {
+		if m.fold, err = newOffsetResampler(spec, cfg.Offset); err != nil {
+			return nil, err
+		}
 	}
-	m.delay = fr.delay*cfg.OutRate/fr.rate + m.out.Delay()
-	if cfg.Offset != 0 {
-		m.osc = NewOscillator(cfg.Offset, cfg.OutRate)
+	if m.fold != nil {
+		m.delay = fr.delay*cfg.OutRate/fr.rate + m.fold.delay
+	} else {
+		if m.out, err = NewResamplerSpec(spec); err != nil {
+			return nil, err
+		}
+		m.delay = fr.delay*cfg.OutRate/fr.rate + m.out.Delay()
+		if cfg.Offset != 0 {
+			m.osc = NewOscillator(cfg.Offset, cfg.OutRate)
+		}
 	}
 	switch cfg.Mode {
 	case "am":
@@ -315,6 +327,9 @@ func (m *Modulator) Delay() float64 { return m.delay }
 // at the first kept sample sees carrier phase 0.
 func (m *Modulator) SetCarrierPhase(phi float64) {
 	m.phase0 = phi
+	if m.fold != nil {
+		m.fold.last.setPhase(phi)
+	}
 	if m.osc != nil {
 		m.osc.SetPhase(phi)
 	}
@@ -329,12 +344,19 @@ func (m *Modulator) MaxOut(n int) int {
 	if m.fr.in != nil {
 		n = m.fr.in.MaxOut(n)
 	}
+	if m.fold != nil {
+		return m.fold.MaxOut(n)
+	}
 	return m.out.MaxOut(n)
 }
 
 // Reset returns every stage to its initial state.
 func (m *Modulator) Reset() {
 	m.fr.reset()
+	if m.fold != nil {
+		m.fold.Reset()
+		return
+	}
 	m.out.Reset()
 	if m.osc != nil {
 		m.osc.SetPhase(m.phase0)
@@ -368,6 +390,9 @@ func (m *Modulator) Process(dst []complex64, src []float32) []complex64 {
 		for i, v := range x {
 			z[i] = complex((v+c)*g, 0)
 		}
+	}
+	if m.fold != nil {
+		return m.fold.Process(dst, z)
 	}
 	need := m.out.MaxOut(len(z))
 	if cap(dst) < need {

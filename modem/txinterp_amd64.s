@@ -1,0 +1,137 @@
+//go:build amd64 && !purego
+
+#include "textflag.h"
+
+// Interpolation kernels (AVX2, FMA): see mixInterpGo in txinterp.go for the
+// loop they implement. Each input position j broadcasts every window
+// sample w = (re, im) to all four complex lanes and multiplies it by the
+// taps of four phases, so a YMM accumulator holds four complex outputs in
+// memory order and no horizontal sum is needed.
+//
+// Registers: DI outputs of position j, SI window of position j, DX taps,
+// CX positions left, R8 k, R9 groups, R10 output stride (up·8 bytes),
+// R11 taps of the group, R12 outputs of the group, R13 groups left,
+// BX window pointer in the tap loop, AX taps left.
+
+// func mixInterpRealAVX2(dst, win *complex64, taps *float32, n, k, groups, up int)
+TEXT ·mixInterpRealAVX2(SB), NOSPLIT, $0-56
+	MOVQ dst+0(FP), DI
+	MOVQ win+8(FP), SI
+	MOVQ taps+16(FP), DX
+	MOVQ n+24(FP), CX
+	MOVQ k+32(FP), R8
+	MOVQ groups+40(FP), R9
+	MOVQ up+48(FP), R10
+	SHLQ $3, R10
+	TESTQ CX, CX
+	JLE  rdone
+
+rpos:
+	MOVQ DX, R11
+	MOVQ DI, R12
+	MOVQ R9, R13
+
+rgrp:
+	VXORPS Y0, Y0, Y0
+	VXORPS Y1, Y1, Y1
+	VXORPS Y2, Y2, Y2
+	VXORPS Y3, Y3, Y3
+	MOVQ   SI, BX
+	MOVQ   R8, AX
+
+rtap:
+	VBROADCASTSD 0(BX), Y4
+	VBROADCASTSD 8(BX), Y5
+	VBROADCASTSD 16(BX), Y6
+	VBROADCASTSD 24(BX), Y7
+	VFMADD231PS  0(R11), Y4, Y0
+	VFMADD231PS  32(R11), Y5, Y1
+	VFMADD231PS  64(R11), Y6, Y2
+	VFMADD231PS  96(R11), Y7, Y3
+	ADDQ         $32, BX
+	ADDQ         $128, R11
+	SUBQ         $4, AX
+	JNZ          rtap
+
+	VADDPS  Y1, Y0, Y0
+	VADDPS  Y3, Y2, Y2
+	VADDPS  Y2, Y0, Y0
+	VMOVUPS Y0, (R12)
+	ADDQ    $32, R12
+	DECQ    R13
+	JNZ     rgrp
+
+	ADDQ $8, SI
+	ADDQ R10, DI
+	DECQ CX
+	JNZ  rpos
+
+rdone:
+	VZEROUPPER
+	RET
+
+// For complex taps c = cr + j·ci the products w·cr and w·ci accumulate
+// separately; at the end (wr·ci, wi·ci) is swapped to (wi·ci, wr·ci) and
+// VADDSUBPS gives (wr·cr − wi·ci, wi·cr + wr·ci) = w·c.
+
+// func mixInterpCplxAVX2(dst, win *complex64, taps *float32, n, k, groups, up int)
+TEXT ·mixInterpCplxAVX2(SB), NOSPLIT, $0-56
+	MOVQ dst+0(FP), DI
+	MOVQ win+8(FP), SI
+	MOVQ taps+16(FP), DX
+	MOVQ n+24(FP), CX
+	MOVQ k+32(FP), R8
+	MOVQ groups+40(FP), R9
+	MOVQ up+48(FP), R10
+	SHLQ $3, R10
+	TESTQ CX, CX
+	JLE  cdone
+
+cpos:
+	MOVQ DX, R11
+	MOVQ DI, R12
+	MOVQ R9, R13
+
+cgrp:
+	VXORPS Y0, Y0, Y0
+	VXORPS Y1, Y1, Y1
+	VXORPS Y2, Y2, Y2
+	VXORPS Y3, Y3, Y3
+	MOVQ   SI, BX
+	MOVQ   R8, AX
+
+ctap:
+	VBROADCASTSD 0(BX), Y4
+	VBROADCASTSD 8(BX), Y5
+	VFMADD231PS  0(R11), Y4, Y0
+	VFMADD231PS  32(R11), Y4, Y1
+	VFMADD231PS  64(R11), Y5, Y2
+	VFMADD231PS  96(R11), Y5, Y3
+	VBROADCASTSD 16(BX), Y4
+	VBROADCASTSD 24(BX), Y5
+	VFMADD231PS  128(R11), Y4, Y0
+	VFMADD231PS  160(R11), Y4, Y1
+	VFMADD231PS  192(R11), Y5, Y2
+	VFMADD231PS  224(R11), Y5, Y3
+	ADDQ         $32, BX
+	ADDQ         $256, R11
+	SUBQ         $4, AX
+	JNZ          ctap
+
+	VADDPS    Y2, Y0, Y0
+	VADDPS    Y3, Y1, Y1
+	VPERMILPS $0xB1, Y1, Y1
+	VADDSUBPS Y1, Y0, Y0
+	VMOVUPS   Y0, (R12)
+	ADDQ      $32, R12
+	DECQ      R13
+	JNZ       cgrp
+
+	ADDQ $8, SI
+	ADDQ R10, DI
+	DECQ CX
+	JNZ  cpos
+
+cdone:
+	VZEROUPPER
+	RET
