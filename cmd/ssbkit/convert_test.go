@@ -1,12 +1,15 @@
 package main
 
 import (
+	"errors"
 	"io"
 	"math"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"strings"
 	"testing"
+	"time"
 
 	"ssbkit/iq"
 )
@@ -188,6 +191,80 @@ func TestConvertUsage(t *testing.T) {
 		if code != exitUsage || !strings.Contains(errs, c.want) {
 			t.Errorf("%v: exit %d %q; want 2 and %q", c.args, code, errs, c.want)
 		}
+	}
+	assertNoTemp(t, dir)
+}
+
+// TestConvertHelperProcess is not a test: run as a child process by
+// TestConvertInterrupted, it is the ssbkit command.
+func TestConvertHelperProcess(t *testing.T) {
+	if os.Getenv("SSBKIT_TEST_HELPER") != "1" {
+		return
+	}
+	args := os.Args
+	for i, a := range args {
+		if a == "--" {
+			args = args[i+1:]
+			break
+		}
+	}
+	os.Exit(run(args, &env{stdin: os.Stdin, stdout: os.Stdout, stderr: os.Stderr}))
+}
+
+// TestConvertInterrupted: SIGINT in the middle of a conversion (input from
+// a pipe that stays open) removes the temporary output, leaves no target
+// and exits with 130 (128 + SIGINT, the shell convention, common practice).
+func TestConvertInterrupted(t *testing.T) {
+	if testing.Short() {
+		t.Skip("starts a child process")
+	}
+	const waitFor = 10 * time.Second
+	dir := t.TempDir()
+	out := filepath.Join(dir, "out.cf32")
+	cmd := exec.Command(os.Args[0], "-test.run=^TestConvertHelperProcess$", "--",
+		"convert", "--format", "cu8", "--rate", "1M", "-q", "-", out)
+	cmd.Env = append(os.Environ(), "SSBKIT_TEST_HELPER=1")
+	var stderr strings.Builder
+	cmd.Stderr = &stderr
+	stdin, err := cmd.StdinPipe()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := cmd.Start(); err != nil {
+		t.Fatal(err)
+	}
+	defer cmd.Process.Kill()
+	// Enough samples for the first blocks to reach the temporary file.
+	if _, err := stdin.Write(make([]byte, 1<<20)); err != nil {
+		t.Fatal(err)
+	}
+	deadline := time.Now().Add(waitFor)
+	for {
+		tmp, _ := filepath.Glob(filepath.Join(dir, ".out.cf32.tmp*"))
+		if len(tmp) > 0 {
+			if st, err := os.Stat(tmp[0]); err == nil && st.Size() > 0 {
+				break
+			}
+		}
+		if time.Now().After(deadline) {
+			t.Fatalf("no temporary output after %v; stderr %q", waitFor, stderr.String())
+		}
+		time.Sleep(20 * time.Millisecond)
+	}
+	if err := cmd.Process.Signal(os.Interrupt); err != nil {
+		t.Fatal(err)
+	}
+	err = cmd.Wait()
+	stdin.Close()
+	var ee *exec.ExitError
+	if !errors.As(err, &ee) || ee.ExitCode() != 130 {
+		t.Errorf("exit %v, want status 130; stderr %q", err, stderr.String())
+	}
+	if !strings.Contains(stderr.String(), "interrupted") {
+		t.Errorf("stderr %q does not say it was interrupted", stderr.String())
+	}
+	if _, err := os.Stat(out); !os.IsNotExist(err) {
+		t.Errorf("%s exists after the interrupt", out)
 	}
 	assertNoTemp(t, dir)
 }
