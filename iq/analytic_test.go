@@ -42,13 +42,16 @@ func TestAnalyticImage(t *testing.T) {
 		gainTol  = 0.001 // dB of passband ripple
 	)
 	a := NewAnalytic(DefaultAnalyticTaps)
+	worst := math.Inf(1)
 	for _, f := range []float64{48, 200, 300, 1000, 2700, 6000, 12000, 20000, 23952} {
 		w, im := toneImage(a, f, fs, n)
 		rej := 20 * math.Log10(w/im)
 		if rej < minImage || math.Abs(20*math.Log10(w)) > gainTol {
 			t.Errorf("f=%v Hz: gain %.4f dB, image %.1f dB down; want |gain| < %v dB and image > %v dB", f, 20*math.Log10(w), rej, gainTol, minImage)
 		}
+		worst = math.Min(worst, rej)
 	}
+	t.Logf("image at least %.1f dB down from 48 Hz to 23952 Hz at 48 kHz", worst)
 }
 
 // TestAnalyticBlocks checks that block-wise processing equals the whole
