@@ -6,6 +6,7 @@ import (
 	"io"
 	"math"
 	"path/filepath"
+	"runtime"
 	"text/tabwriter"
 
 	"gonum.org/v1/plot/vg"
@@ -29,17 +30,21 @@ for SSB it sits 300 Hz (the usual low audio edge, common practice) outside
 the steep edge of the voice spectrum. Frequencies are offsets from the
 capture centre; freq_hz is absolute when the centre is known.
 
-Long captures: at most 16 M samples' worth of FFT segments, spread evenly
-over the capture, are averaged (--full averages every segment with 50 %
-overlap).
+The average is a Welch average over every sample of the capture (Hann
+window, 50 % overlap), streamed in bounded memory on all cores. --fast
+instead transforms at most 16 M samples' worth of segments spread evenly
+over a longer capture: a quick look at very long recordings, a sampled
+average rather than a full one (its noise floor is less smooth and a
+short burst between segments is missed).
 
 Examples:
   ssbkit spectrum band.sigmf-meta -o band.png
   ssbkit spectrum capture.cu8 --rate 2.4M --center 7.1M -o wide.png --list
-  ssbkit spectrum audio-if.wav --json --resolution 10`
+  ssbkit spectrum audio-if.wav --json --resolution 10
+  ssbkit spectrum hour.cu8 --rate 2.4M --fast -o hour.png`
 
-// fftBudget is the number of samples transformed by default, however long
-// the capture (segments are then spread evenly over it).
+// fftBudget is the number of samples --fast transforms, however long the
+// capture (segments are then spread evenly over it).
 const fftBudget = 16 << 20
 
 func runSpectrum(e *env, args []string) error {
@@ -51,7 +56,9 @@ func runSpectrum(e *env, args []string) error {
 	resS := fs.String("resolution", "50", "largest FFT bin spacing in Hz (sets the FFT length, a power of two)")
 	rows := fs.Int("rows", 300, "about this many waterfall rows (between it and twice it)")
 	thr := fs.Float64("threshold", 8, "detection threshold in dB above the noise floor")
-	full := fs.Bool("full", false, "average every segment (50 % overlap), however long the capture")
+	fast := fs.Bool("fast", false, "sample at most 16 M samples' worth of segments spread over a long capture instead of averaging all")
+	fs.Bool("full", true, "average every segment (the default)")
+	_ = fs.MarkDeprecated("full", "the full average is the default now")
 	width := fs.Int("width", 1200, "picture width in points")
 	height := fs.Int("height", 900, "picture height in points")
 	quiet := fs.BoolP("quiet", "q", false, "no progress bar")
@@ -97,11 +104,12 @@ func runSpectrum(e *env, args []string) error {
 			in, meta.Samples, float64(meta.Samples)/meta.Rate, res, n, coarser)
 	}
 	hop := n / 2
-	if !*full && meta.Samples > fftBudget {
+	if *fast && meta.Samples > fftBudget {
 		segs := max(1, fftBudget/n)
 		hop = max(hop, int(meta.Samples/int64(segs)))
 	}
-	wf := spectral.NewWaterfall(n, meta.Rate, *rows, min(n, 1024), spectral.Options{Hop: hop})
+	wf := spectral.NewWaterfall(n, meta.Rate, *rows, min(n, 1024), spectral.Options{Hop: hop, Workers: runtime.GOMAXPROCS(0)})
+	defer wf.Close()
 	bar := newProgress(e, *quiet, "spectrum", meta.Samples)
 	buf := make([]complex64, 1<<16)
 	var total int64

@@ -32,12 +32,16 @@ func NewWaterfall(fftSize int, rate float64, maxRows, cols int, opt Options) *Wa
 		cols:    min(cols, fftSize),
 		perRow:  1,
 	}
-	w.acc.each = w.segment
+	w.acc.columns(w.cols, w.segment)
 	return w
 }
 
 // Add feeds the next block of the stream.
 func (w *Waterfall) Add(block []complex64) { w.acc.Add(block) }
+
+// Close releases the accumulator's helper goroutines (see
+// Options.Workers); the rows and spectrum stay readable.
+func (w *Waterfall) Close() { w.acc.Close() }
 
 // Accumulator returns the underlying Welch accumulator (the average over
 // the whole stream).
@@ -56,7 +60,8 @@ func (w *Waterfall) newRow() []float64 {
 	return make([]float64, w.cols)
 }
 
-// segment adds one periodogram (FFT order) to the current row.
+// segment adds one periodogram, summed over each column's bins, to the
+// current row.
 func (w *Waterfall) segment(p []float64) {
 	if len(w.rows) == 0 || w.cur == w.perRow {
 		if len(w.rows) == 2*w.maxRows {
@@ -75,14 +80,9 @@ func (w *Waterfall) segment(p []float64) {
 		w.cur = 0
 	}
 	row := w.rows[len(w.rows)-1]
-	n := len(p)
-	h := n / 2
-	for j := 0; j < n; j++ {
-		i := j - h
-		if i < 0 {
-			i += n
-		}
-		row[j*w.cols/n] += p[i]
+	row = row[:len(p)]
+	for c, v := range p {
+		row[c] += v
 	}
 	w.cur++
 }
@@ -92,7 +92,8 @@ func (w *Waterfall) segment(p []float64) {
 // its column's bins; column c covers centred bins [c·n/Cols, (c+1)·n/Cols).
 // The last row may hold fewer segments than the others.
 func (w *Waterfall) Rows() [][]float64 {
-	n := w.acc.n
+	w.acc.flush()
+	n := w.acc.k.n
 	out := make([][]float64, len(w.rows))
 	for r, row := range w.rows {
 		segs := w.perRow
@@ -113,11 +114,13 @@ func (w *Waterfall) Rows() [][]float64 {
 
 // LastRowSeconds returns the stream time the last row spans so far.
 func (w *Waterfall) LastRowSeconds() float64 {
+	w.acc.flush()
 	return float64(w.cur*w.acc.hop) / w.acc.rate
 }
 
 // RowSeconds returns the stream time one full row spans.
 func (w *Waterfall) RowSeconds() float64 {
+	w.acc.flush()
 	return float64(w.perRow*w.acc.hop) / w.acc.rate
 }
 

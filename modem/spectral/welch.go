@@ -2,12 +2,14 @@ package spectral
 
 import (
 	"math"
+	"runtime"
+	"sync"
 
 	"gonum.org/v1/gonum/dsp/fourier"
 )
 
 // Options configures an Accumulator. The zero value is a Hann window with
-// 50 % overlap.
+// 50 % overlap, run on the caller's goroutine.
 type Options struct {
 	// Window tapers each segment (default Hann).
 	Window Window
@@ -16,34 +18,87 @@ type Options struct {
 	// FFT length skips samples between segments, which samples a long
 	// capture evenly at a bounded cost.
 	Hop int
+	// Workers is the number of goroutines, the caller's included, that
+	// transform segments: 0 or 1 runs everything in Add; more collects a
+	// batch of segments and shares it out. The result is the same, bit
+	// for bit, for any number of workers. Close releases the helpers.
+	Workers int
 }
 
 // Accumulator averages the periodograms of windowed, possibly overlapping
 // segments of a streamed complex signal: Welch's method (P. D. Welch,
 // IEEE Trans. Audio Electroacoust. AU-15(2), 1967). Blocks of any length
 // may be added; the segmentation does not depend on how the stream is cut.
-// Memory is a few slices of the FFT length, whatever the stream's length.
+// Memory is a few slices of the FFT length per batched segment, whatever
+// the stream's length.
+//
+// Power-of-two lengths use the package's radix-4 FFT, others gonum's
+// dsp/fourier. Each bin's sum is built segment by segment in stream
+// order, so batching and workers change nothing in the result.
 type Accumulator struct {
-	n, hop int
-	rate   float64
-	win    Window
+	k    *kernel
+	hop  int
+	rate float64
+	win  Window
+
+	// segments wait in slots until a batch is full: slots[pending] is
+	// being filled with fill samples
+	slots   [][]complex64
+	pending int
+	fill    int
+	skip    int // samples still to drop before the next segment (hop > n)
+	segs    int // segments transformed
+
+	sum  []float64 // Σ|X|² by transform position (see kernel.perm)
+	pow  [][]float64
+	cols [][]float64 // per slot: column sums (waterfall)
+
+	workers []*worker // workers[0] runs on the caller
+	helpers *helpers
+	closed  bool
+
+	// each, when set, sees every segment's column sums (centred, see
+	// Waterfall) in stream order.
+	each func(c []float64)
+}
+
+// kernel is what every worker shares, read only.
+type kernel struct {
+	n      int
 	w      []float64
 	s1, s2 float64
-	fft    *fourier.CmplxFFT
-
-	buf  []complex64 // the segment being filled
-	fill int
-	skip int // samples still to drop before the next segment (hop > n)
-
-	work []complex128
-	sum  []float64 // Σ|X_k|² in FFT order
-	segs int
-
-	// each, when set, sees every segment's |X_k|² (FFT order) as it is
-	// added (the waterfall's rows).
-	each func(p []float64)
-	seg  []float64
+	radix  *radix4 // nil: gonum per worker
+	perm   []int32 // position → bin in FFT order (nil: natural order)
+	inv    []int32 // bin → position
+	ncols  int
+	colOf  []int32 // position → waterfall column
 }
+
+// worker transforms segments with its own scratch space.
+type worker struct {
+	k    *kernel
+	fft  transformer
+	work []complex128
+	jobs chan job
+	done chan struct{}
+}
+
+// job is one share of a batch: phase 1 transforms slots [from, to) into
+// pow (and cols); phase 2 adds the count rows of pow into sum over
+// positions [from, to).
+type job struct {
+	phase    int
+	from, to int
+	count    int
+	slots    [][]complex64
+	pow      [][]float64
+	cols     [][]float64
+	sum      []float64
+}
+
+// maxBatchSamples bounds a batch's slots (and power rows) to about this
+// many samples each.
+const maxBatchSamples = 1 << 19
 
 // NewAccumulator returns a Welch accumulator with a Hann window and 50 %
 // overlap for FFT length fftSize at the given sample rate (Hz).
@@ -52,8 +107,9 @@ func NewAccumulator(fftSize int, rate float64) *Accumulator {
 	return NewAccumulatorOptions(fftSize, rate, Options{})
 }
 
-// NewAccumulatorOptions is NewAccumulator with a chosen window and hop.
-// It panics if fftSize < 2, rate ≤ 0 or opt.Hop < 0.
+// NewAccumulatorOptions is NewAccumulator with a chosen window, hop and
+// number of workers. It panics if fftSize < 2, rate ≤ 0, opt.Hop < 0 or
+// opt.Workers < 0.
 func NewAccumulatorOptions(fftSize int, rate float64, opt Options) *Accumulator {
 	if fftSize < 2 {
 		panic("spectral: FFT length < 2")
@@ -64,24 +120,123 @@ func NewAccumulatorOptions(fftSize int, rate float64, opt Options) *Accumulator 
 	if opt.Hop < 0 {
 		panic("spectral: negative hop")
 	}
+	if opt.Workers < 0 {
+		panic("spectral: negative worker count")
+	}
 	hop := opt.Hop
 	if hop == 0 {
 		hop = fftSize / 2
 	}
-	a := &Accumulator{
-		n: fftSize, hop: hop, rate: rate, win: opt.Window,
-		w:    opt.Window.Coefficients(fftSize),
-		fft:  fourier.NewCmplxFFT(fftSize),
-		buf:  make([]complex64, fftSize),
-		work: make([]complex128, fftSize),
-		sum:  make([]float64, fftSize),
+	n := fftSize
+	k := &kernel{n: n, w: opt.Window.Coefficients(n)}
+	k.s1, k.s2 = windowSums(k.w)
+	if n&(n-1) == 0 {
+		k.radix = newRadix4(n)
+		k.perm = k.radix.perm
+		k.inv = make([]int32, n)
+		for p, b := range k.perm {
+			k.inv[b] = int32(p)
+		}
 	}
-	a.s1, a.s2 = windowSums(a.w)
+	nw := max(1, opt.Workers)
+	batch := 1
+	if nw > 1 {
+		batch = nw * max(1, min(4, maxBatchSamples/n))
+	}
+	a := &Accumulator{
+		k: k, hop: hop, rate: rate, win: opt.Window,
+		slots: make([][]complex64, batch),
+		sum:   make([]float64, n),
+	}
+	for i := range a.slots {
+		a.slots[i] = make([]complex64, n)
+	}
+	if batch > 1 {
+		a.pow = make([][]float64, batch)
+		for i := range a.pow {
+			a.pow[i] = make([]float64, n)
+		}
+	}
+	for i := range nw {
+		w := &worker{k: k, work: make([]complex128, n)}
+		if k.radix != nil {
+			w.fft = k.radix
+		} else {
+			w.fft = gonumFFT{fourier.NewCmplxFFT(n)}
+		}
+		if i > 0 {
+			w.jobs, w.done = make(chan job), make(chan struct{})
+			go w.run()
+		}
+		a.workers = append(a.workers, w)
+	}
+	if nw > 1 {
+		// the helpers hold no reference to a: stop them if a is dropped
+		// without Close
+		a.helpers = &helpers{}
+		for _, w := range a.workers[1:] {
+			a.helpers.chans = append(a.helpers.chans, w.jobs)
+		}
+		runtime.AddCleanup(a, (*helpers).stop, a.helpers)
+	}
 	return a
 }
 
+// helpers are the job channels of an Accumulator's helper goroutines.
+type helpers struct {
+	once  sync.Once
+	chans []chan job
+}
+
+// stop closes the channels once, ending the goroutines.
+func (h *helpers) stop() {
+	h.once.Do(func() {
+		for _, c := range h.chans {
+			close(c)
+		}
+	})
+}
+
+// Close stops the helper goroutines of an Accumulator with Workers > 1
+// after transforming any waiting segments; Add may not be called after
+// it. Close of a one-worker Accumulator only flushes.
+func (a *Accumulator) Close() {
+	if a.closed {
+		return
+	}
+	a.flush()
+	a.closed = true
+	if a.helpers != nil {
+		a.helpers.stop()
+	}
+	a.workers = a.workers[:1]
+}
+
+// columns makes every segment also report its power summed over ncols
+// columns of centred bins (column c holds bins [c·n/ncols, (c+1)·n/ncols))
+// to fn. It must be called before the first Add.
+func (a *Accumulator) columns(ncols int, fn func(c []float64)) {
+	k := a.k
+	k.ncols = ncols
+	k.colOf = make([]int32, k.n)
+	h := k.n / 2
+	for p := range k.colOf {
+		b := p
+		if k.perm != nil {
+			b = int(k.perm[p])
+		}
+		j := (b + h) % k.n // centred index
+		k.colOf[p] = int32(j * ncols / k.n)
+	}
+	a.cols = make([][]float64, len(a.slots))
+	for i := range a.cols {
+		a.cols[i] = make([]float64, ncols)
+	}
+	a.each = fn
+}
+
 // Len returns the FFT length.
-func (a *Accumulator) Len() int { return a.n }
+func (a *Accumulator) Len() int { return a.k.n }
 
 // Rate returns the sample rate in Hz.
 func (a *Accumulator) Rate() float64 { return a.rate }
@@ -89,17 +244,22 @@ func (a *Accumulator) Rate() float64 { return a.rate }
 // Hop returns the samples between segment starts.
 func (a *Accumulator) Hop() int { return a.hop }
 
-// Segments returns the number of segments averaged so far.
-func (a *Accumulator) Segments() int { return a.segs }
+// Segments returns the number of complete segments added so far.
+func (a *Accumulator) Segments() int { return a.segs + a.pending }
 
 // Reset forgets every sample and segment.
 func (a *Accumulator) Reset() {
-	a.fill, a.skip, a.segs = 0, 0, 0
+	a.fill, a.skip, a.segs, a.pending = 0, 0, 0, 0
 	clear(a.sum)
 }
 
 // Add feeds the next block of the stream. It does not allocate.
+// It panics if called after Close.
 func (a *Accumulator) Add(block []complex64) {
+	if a.closed {
+		panic("spectral: Add after Close")
+	}
+	n := a.k.n
 	for len(block) > 0 {
 		if a.skip > 0 {
 			k := min(a.skip, len(block))
@@ -107,71 +267,176 @@ func (a *Accumulator) Add(block []complex64) {
 			block = block[k:]
 			continue
 		}
-		k := copy(a.buf[a.fill:], block)
+		cur := a.slots[a.pending]
+		k := copy(cur[a.fill:], block)
 		a.fill += k
 		block = block[k:]
-		if a.fill < a.n {
+		if a.fill < n {
 			return
 		}
-		a.segment()
-		if a.hop < a.n {
-			copy(a.buf, a.buf[a.hop:])
-			a.fill = a.n - a.hop
+		a.pending++
+		if a.pending == len(a.slots) {
+			a.run()
+		}
+		// the next segment starts with the overlap; run leaves the slots
+		// as they were
+		if a.hop < n {
+			copy(a.slots[a.pending], cur[a.hop:])
+			a.fill = n - a.hop
 		} else {
 			a.fill = 0
-			a.skip = a.hop - a.n
+			a.skip = a.hop - n
 		}
 	}
 }
 
-// segment windows, transforms and accumulates the full buffer.
-func (a *Accumulator) segment() {
-	w, work := a.w, a.work[:len(a.w)]
-	for i, v := range a.buf[:len(w)] {
-		work[i] = complex(float64(real(v))*w[i], float64(imag(v))*w[i])
+// flush transforms the waiting segments and moves the partly filled one
+// to the first slot.
+func (a *Accumulator) flush() {
+	if a.pending == 0 {
+		return
 	}
-	a.fft.Coefficients(work, work)
-	sum := a.sum[:len(work)]
-	if a.each == nil {
-		for k, c := range work {
-			re, im := real(c), imag(c)
-			sum[k] += re*re + im*im
+	last := a.pending
+	a.run()
+	if a.fill > 0 {
+		copy(a.slots[0][:a.fill], a.slots[last][:a.fill])
+	}
+}
+
+// run transforms the pending segments and adds them to the sums.
+func (a *Accumulator) run() {
+	cnt := a.pending
+	if cnt == 0 {
+		return
+	}
+	nw := len(a.workers)
+	if nw == 1 {
+		// one worker: each bin's sum gets the segments in order directly
+		for j := range cnt {
+			var cols []float64
+			if a.cols != nil {
+				cols = a.cols[j]
+			}
+			a.workers[0].segment(a.slots[j], a.sum, cols, true)
 		}
 	} else {
-		if a.seg == nil {
-			a.seg = make([]float64, a.n)
-		}
-		seg := a.seg[:len(work)]
-		for k, c := range work {
-			re, im := real(c), imag(c)
-			p := re*re + im*im
-			seg[k] = p
-			sum[k] += p
-		}
-		a.each(seg)
+		a.share(job{phase: 1, count: cnt, slots: a.slots, pow: a.pow, cols: a.cols}, cnt)
+		a.share(job{phase: 2, count: cnt, pow: a.pow, sum: a.sum}, a.k.n)
 	}
-	a.segs++
+	if a.each != nil {
+		for j := range cnt {
+			a.each(a.cols[j])
+		}
+	}
+	a.segs += cnt
+	a.pending = 0
+}
+
+// share splits [0, total) of j among the workers, the caller taking the
+// first share, and waits for all.
+func (a *Accumulator) share(j job, total int) {
+	nw := len(a.workers)
+	for i := 1; i < nw; i++ {
+		jj := j
+		jj.from, jj.to = i*total/nw, (i+1)*total/nw
+		a.workers[i].jobs <- jj
+	}
+	j.from, j.to = 0, total/nw
+	a.workers[0].do(j)
+	for i := 1; i < nw; i++ {
+		<-a.workers[i].done
+	}
+}
+
+func (w *worker) run() {
+	for j := range w.jobs {
+		w.do(j)
+		w.done <- struct{}{}
+	}
+}
+
+func (w *worker) do(j job) {
+	switch j.phase {
+	case 1:
+		for s := j.from; s < j.to; s++ {
+			var cols []float64
+			if j.cols != nil {
+				cols = j.cols[s]
+			}
+			w.segment(j.slots[s], j.pow[s], cols, false)
+		}
+	case 2:
+		sum := j.sum[j.from:j.to]
+		for _, p := range j.pow[:j.count] {
+			p = p[j.from:j.to]
+			p = p[:len(sum)]
+			for i, v := range p {
+				sum[i] += v
+			}
+		}
+	}
+}
+
+// segment windows, transforms and squares one segment: |X|² by position
+// is added to out (add) or stored in it, and summed per column into cols
+// when cols is not nil.
+func (w *worker) segment(seg []complex64, out, cols []float64, add bool) {
+	k := w.k
+	win, work := k.w, w.work[:len(k.w)]
+	seg = seg[:len(win)]
+	for i, v := range seg {
+		work[i] = complex(float64(real(v))*win[i], float64(imag(v))*win[i])
+	}
+	w.fft.transform(work)
+	out = out[:len(work)]
+	switch {
+	case cols != nil:
+		clear(cols)
+		colOf := k.colOf[:len(work)]
+		for p, c := range work {
+			re, im := real(c), imag(c)
+			v := re*re + im*im
+			if add {
+				out[p] += v
+			} else {
+				out[p] = v
+			}
+			cols[colOf[p]] += v
+		}
+	case add:
+		for p, c := range work {
+			re, im := real(c), imag(c)
+			out[p] += re*re + im*im
+		}
+	default:
+		for p, c := range work {
+			re, im := real(c), imag(c)
+			out[p] = re*re + im*im
+		}
+	}
 }
 
 // densityScale turns a sum of |X_k|² over segs segments into power per Hz:
 // P_k = Σ|X_k|² / (segs · rate · Σw²), the density scaling of Welch's
 // estimate (scipy.signal.welch scaling="density" uses the same).
 func (a *Accumulator) densityScale(segs int) float64 {
-	return 1 / (float64(segs) * a.rate * a.s2)
+	return 1 / (float64(segs) * a.rate * a.k.s2)
 }
 
 // Spectrum returns the averaged power spectral density so far, centred
 // (index 0 is −rate/2). It returns nil before the first full segment.
 func (a *Accumulator) Spectrum() *Spectrum {
+	a.flush()
 	if a.segs == 0 {
 		return nil
 	}
+	k := a.k
 	s := &Spectrum{
 		Rate: a.rate, Window: a.win, Segments: a.segs,
-		ENBW:    float64(a.n) * a.s2 / (a.s1 * a.s1),
-		Density: make([]float64, a.n),
+		ENBW:    float64(k.n) * k.s2 / (k.s1 * k.s1),
+		Density: make([]float64, k.n),
 	}
-	centre(s.Density, a.sum, a.densityScale(a.segs))
+	centre(s.Density, a.sum, k.inv, a.densityScale(a.segs))
 	return s
 }
 
@@ -187,14 +452,18 @@ func (a *Accumulator) PSD() []float64 {
 	return s.Density
 }
 
-// centre writes src (FFT order) scaled by k into dst in centred order.
-func centre(dst, src []float64, k float64) {
+// centre writes src scaled by k into dst in centred order; src holds bin
+// i (FFT order) at position inv[i] (at i when inv is nil).
+func centre(dst, src []float64, inv []int32, k float64) {
 	n := len(src)
 	h := n / 2
 	for j := range dst {
 		i := j - h
 		if i < 0 {
 			i += n
+		}
+		if inv != nil {
+			i = int(inv[i])
 		}
 		dst[j] = src[i] * k
 	}
