@@ -2,7 +2,8 @@
 """Golden files for package hilbert, made with Debian's python3-scipy.
 
 Run from this folder:  /usr/bin/python3 golden.py
-Writes remez_golden.json and ellip_golden.json. go test never runs this.
+Writes remez_golden.json, ellip_golden.json and kaiser_golden.json. go test
+never runs this.
 """
 import json
 
@@ -95,11 +96,25 @@ def ellip_cases():
     return out
 
 
+def kaiser_cases():
+    """Kaiser's beta for a stop-band attenuation (scipy.signal.kaiser_beta)
+    and Kaiser windows (scipy.signal.windows.kaiser, symmetric)."""
+    betas = [{"atten_db": a, "beta": float(signal.kaiser_beta(a))}
+             for a in (10.0, 21.0, 30.0, 40.0, 50.0, 50.5, 60.0, 80.0, 120.0)]
+    windows = [{"n": n, "beta": b, "w": [float(v) for v in signal.windows.kaiser(n, b, sym=True)]}
+               for n, b in ((7, 2.0), (31, 5.65326), (64, 8.6), (101, 14.0))]
+    return betas, windows
+
+
 if __name__ == '__main__':
     with open('remez_golden.json', 'w') as f:
         json.dump({"source": "scipy.signal.remez(taps, [low, high], [1], type='hilbert', fs=rate, grid_density=%d)" % GRID,
                    "scipy_version": VERSION, "cases": remez_cases(),
                    "remez63_default_grid_suppression_min_db": remez63_default_grid()}, f, indent=1)
+    betas, windows = kaiser_cases()
+    with open('kaiser_golden.json', 'w') as f:
+        json.dump({"source": "scipy.signal.kaiser_beta(atten_db); scipy.signal.windows.kaiser(n, beta, sym=True)",
+                   "scipy_version": VERSION, "betas": betas, "windows": windows}, f, indent=1)
     with open('ellip_golden.json', 'w') as f:
         json.dump({"source": "scipy.signal.ellip half-band low-pass, stop edge fitted to rate/4+fe; a = |pole|^2",
                    "scipy_version": VERSION, "cases": ellip_cases()}, f, indent=1)
