@@ -40,6 +40,7 @@ type ShiftDecimator struct {
 	rot    complex128
 	buf    []complex64 // history (l−1) then the current chunk
 	pos    int64       // absolute index of the next input sample
+	kt     *kernelTaps // cr, ci for the assembly kernel (nil without it)
 }
 
 // NewShiftDecimator returns a decimator by d with the given low-pass taps
@@ -78,6 +79,9 @@ func NewShiftDecimator(taps []float64, d, phase int, freq, rate float64) *ShiftD
 		}
 		sn, cs := math.Sincos(w * c)
 		s.post = complex(cs, sn)
+	}
+	if haveKernels {
+		s.kt = newKernelTaps(s.cr, s.ci)
 	}
 	s.buf = make([]complex64, l-1, l-1+stageChunk)
 	return s
@@ -140,40 +144,46 @@ func (s *ShiftDecimator) Block(dst, win []complex64, a int64) []complex64 {
 	if n >= a+nb {
 		return dst
 	}
-	if s.sym {
+	if s.sym && s.kt == nil {
 		return s.blockSym(dst, win, a, n, nb)
 	}
-	p := phasor(uint64(n) * s.step)
+	return s.blockDot(dst, win, a, n, nb)
+}
+
+// blockDot is Block as the dot products of the folded taps with every
+// d-th window (by the assembly kernel when there is one, else its Go
+// twin), then the output rotation.
+func (s *ShiftDecimator) blockDot(dst, win []complex64, a, n, nb int64) []complex64 {
+	j0 := int(n - a)
+	cnt := (int(nb)-1-j0)/s.d + 1
+	k := len(dst)
+	if cap(dst)-k < cnt {
+		nd := make([]complex64, k, 2*(k+cnt))
+		copy(nd, dst)
+		dst = nd
+	}
+	out := dst[k : k+cnt]
+	if s.kt != nil {
+		s.kt.dotComplex(out, win[j0:], s.d)
+	} else {
+		dotComplexGo(out, win[j0:], s.d, s.cr, s.ci)
+	}
+	rotate(out, phasor(uint64(n)*s.step), s.rot)
+	return dst[:k+cnt]
+}
+
+// rotate multiplies out[i] by p·rⁱ, the phasor advanced by a float64
+// recursion. The caller restarts p from the exact phase at every block,
+// so the rounding of the recursion does not accumulate over a stream.
+func rotate(out []complex64, p, r complex128) {
 	pr, pi := real(p), imag(p)
-	rr, ri := real(s.rot), imag(s.rot)
-	cr, ci := s.cr[:l], s.ci[:l]
-	for j := int(n - a); j < int(nb); j += s.d {
-		w := win[j : j+l]
-		w = w[:len(cr)]
-		var ar, ai, br, bi float32
-		k := 0
-		for ; k+1 < len(cr); k += 2 {
-			x0, x1 := w[k], w[k+1]
-			xr0, xi0 := real(x0), imag(x0)
-			xr1, xi1 := real(x1), imag(x1)
-			ar += cr[k]*xr0 - ci[k]*xi0
-			ai += cr[k]*xi0 + ci[k]*xr0
-			br += cr[k+1]*xr1 - ci[k+1]*xi1
-			bi += cr[k+1]*xi1 + ci[k+1]*xr1
-		}
-		if k < len(cr) {
-			x0 := w[k]
-			xr0, xi0 := real(x0), imag(x0)
-			ar += cr[k]*xr0 - ci[k]*xi0
-			ai += cr[k]*xi0 + ci[k]*xr0
-		}
-		ar += br
-		ai += bi
+	rr, ri := real(r), imag(r)
+	for i, v := range out {
+		ar, ai := real(v), imag(v)
 		fr, fi := float32(pr), float32(pi)
-		dst = append(dst, complex(ar*fr-ai*fi, ar*fi+ai*fr))
+		out[i] = complex(ar*fr-ai*fi, ar*fi+ai*fr)
 		pr, pi = pr*rr-pi*ri, pr*ri+pi*rr
 	}
-	return dst
 }
 
 // blockSym is Block for symmetric taps h[k] = h[L−1−k]. With
@@ -227,7 +237,8 @@ func (s *ShiftDecimator) blockSym(dst, win []complex64, a, n, nb int64) []comple
 // outputs (Crochiere & Rabiner, 1983, sec. 3.3). float32 arithmetic on
 // real and imaginary parts, written by hand like FIR.
 type Decimator struct {
-	rev   []float32 // taps reversed
+	kt    *kernelTaps // rev for the assembly kernel (nil without it)
+	rev   []float32   // taps reversed
 	l, d  int
 	phase int
 	next  int // index in the coming input of the next output (window end)
@@ -242,6 +253,9 @@ func NewDecimator(taps []float64, d, phase int) *Decimator {
 		panic("modem: invalid decimator parameters")
 	}
 	f := &Decimator{rev: reverse32(taps), l: len(taps), d: d, phase: phase, next: phase}
+	if haveKernels {
+		f.kt = newKernelTaps(f.rev, nil)
+	}
 	f.buf = make([]complex64, f.l-1, f.l-1+stageChunk)
 	return f
 }
@@ -273,23 +287,17 @@ func (f *Decimator) Process(dst, src []complex64) []complex64 {
 		c := min(stageChunk, len(src))
 		buf := append(f.buf[:l-1], src[:c]...)
 		j := f.next
-		for ; j < c; j += f.d {
-			w := buf[j : j+l]
-			w = w[:len(h)]
-			var r0, i0, r1, i1 float32
-			k := 0
-			for ; k+1 < len(h); k += 2 {
-				a, b := w[k], w[k+1]
-				r0 += h[k] * real(a)
-				i0 += h[k] * imag(a)
-				r1 += h[k+1] * real(b)
-				i1 += h[k+1] * imag(b)
+		if j < c {
+			cnt := (c-1-j)/f.d + 1
+			k := len(dst)
+			out := dst[k : k+cnt]
+			if f.kt != nil {
+				f.kt.dotReal(out, buf[j:], f.d)
+			} else {
+				dotRealGo(out, buf[j:], f.d, h)
 			}
-			if k < len(h) {
-				r0 += h[k] * real(w[k])
-				i0 += h[k] * imag(w[k])
-			}
-			dst = append(dst, complex(r0+r1, i0+i1))
+			dst = dst[:k+cnt]
+			j += cnt * f.d
 		}
 		f.next = j - c
 		copy(buf, buf[c:])
@@ -304,6 +312,7 @@ func (f *Decimator) Process(dst, src []complex64) []complex64 {
 // 1983, sec. 3.3), h designed at the output rate with unity DC gain.
 type Interpolator struct {
 	ph  [][]float32 // ph[p][i] = u·h[p + i·u], reversed in i
+	kt  *interpTaps // ph for the assembly kernel (nil without it)
 	u   int
 	k   int // taps per phase
 	l   int
@@ -327,6 +336,9 @@ func NewInterpolator(h []float64, u int) *Interpolator {
 			}
 		}
 		it.ph = append(it.ph, row)
+	}
+	if haveKernels {
+		it.kt = newInterpTaps(it.ph, k)
 	}
 	it.buf = make([]complex64, k-1, k-1+stageChunk)
 	return it
@@ -354,19 +366,13 @@ func (it *Interpolator) Process(dst, src []complex64) []complex64 {
 	for len(src) > 0 {
 		c := min(stageChunk, len(src))
 		buf := append(it.buf[:k-1], src[:c]...)
-		for j := range c {
-			w := buf[j : j+k]
-			for _, h := range it.ph {
-				h = h[:len(w)]
-				var r, i float32
-				for t, v := range w {
-					r += h[t] * real(v)
-					i += h[t] * imag(v)
-				}
-				dst[o] = complex(r, i)
-				o++
-			}
+		out := dst[o : o+c*it.u]
+		if it.kt != nil {
+			it.kt.interp(out, buf)
+		} else {
+			interpGo(out, buf, it.ph)
 		}
+		o += c * it.u
 		copy(buf, buf[c:])
 		it.buf = buf[:k-1]
 		src = src[c:]

@@ -144,7 +144,7 @@ type Channel struct {
 	plan   ChannelPlan
 	first  *ShiftDecimator
 	stages []*Decimator
-	filt   *FIR
+	filt   *Decimator // the channel low-pass: a decimator by 1, for its kernel
 	interp *Interpolator
 	rs     *Resampler
 	ssb    *SSBDemod
@@ -212,7 +212,7 @@ func NewChannel(cfg RxConfig) (*Channel, error) {
 		c.stages = append(c.stages, NewDecimator(stageTaps[i], d, s%d))
 		s /= d
 	}
-	c.filt = NewFIR(filt)
+	c.filt = NewDecimator(filt, 1, 0)
 	c.sbuf = make([][]complex64, len(c.stages))
 
 	switch cfg.Mode {

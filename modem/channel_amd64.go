@@ -1,0 +1,25 @@
+//go:build amd64 && !purego
+
+package modem
+
+import "golang.org/x/sys/cpu"
+
+// haveKernels reports whether the AVX2/FMA kernels of channel_amd64.s
+// run on this CPU; without them the decimators use their Go loops.
+var haveKernels = cpu.X86.HasAVX2 && cpu.X86.HasFMA
+
+// dotComplexAVX2 is dotComplexGo on the kernel layout (see kernelTaps):
+// len(dst) outputs from windows of 4·full + rem taps at x, x+step, ….
+//
+//go:noescape
+func dotComplexAVX2(dst []complex64, x *complex64, step int, crd, cid *float32, full int, mask *[8]int32, rem int)
+
+// dotRealAVX2 is dotRealGo on the kernel layout.
+//
+//go:noescape
+func dotRealAVX2(dst []complex64, x *complex64, step int, hd *float32, full int, mask *[8]int32, rem int)
+
+// interpAVX2 is interpGo on the transposed layout of interpTaps.
+//
+//go:noescape
+func interpAVX2(dst *complex64, x *complex64, n int, taps *float32, k, full int, mask *[8]int32, part, stride int)

@@ -1,0 +1,285 @@
+//go:build amd64 && !purego
+
+#include "textflag.h"
+
+// The AVX2/FMA kernels of channel_amd64.go. Their pure-Go twins,
+// dotComplexGo and dotRealGo in channel_kernel.go, are the reference
+// loops; TestKernelsMatchGo compares both on random data.
+//
+// Taps are stored duplicated, t[2k] = t[2k+1] = tap k, and zero-padded
+// to whole groups of four complex samples (eight floats), so that one
+// 256-bit load of four interleaved samples (xr, xi, …) multiplies a tap
+// register lane by lane. A last partial group of rem samples is read
+// with VMASKMOVPS, which touches no memory in its masked lanes.
+
+// func dotComplexAVX2(dst []complex64, x *complex64, step int, crd, cid *float32, full int, mask *[8]int32, rem int)
+//
+// dst[m] = Σₖ (cr[k] + j·ci[k])·x[m·step + k], k < 4·full + rem.
+// Two accumulators per part, A = Σ cr·(xr, xi) and B = Σ ci·(xr, xi);
+// at the end (A.re − B.im, A.im + B.re) is one VPERMILPS and one
+// VADDSUBPS, then the four complex lanes are summed.
+TEXT ·dotComplexAVX2(SB), NOSPLIT, $0-80
+	MOVQ dst_base+0(FP), DI
+	MOVQ dst_len+8(FP), CX
+	MOVQ x+24(FP), SI
+	MOVQ step+32(FP), DX
+	SHLQ $3, DX
+	MOVQ crd+40(FP), R8
+	MOVQ cid+48(FP), R9
+	MOVQ full+56(FP), R10
+	MOVQ mask+64(FP), R11
+	MOVQ rem+72(FP), R12
+	TESTQ CX, CX
+	JZ   cdone
+	VMOVDQU (R11), Y7
+
+couter:
+	VXORPS Y0, Y0, Y0
+	VXORPS Y1, Y1, Y1
+	VXORPS Y2, Y2, Y2
+	VXORPS Y3, Y3, Y3
+	MOVQ SI, AX
+	MOVQ R8, BX
+	MOVQ R9, R13
+	MOVQ R10, R11
+	CMPQ R11, $2
+	JLT  csingle
+
+cpairs:
+	VMOVUPS     (AX), Y4
+	VMOVUPS     32(AX), Y5
+	VFMADD231PS (BX), Y4, Y0
+	VFMADD231PS (R13), Y4, Y1
+	VFMADD231PS 32(BX), Y5, Y2
+	VFMADD231PS 32(R13), Y5, Y3
+	ADDQ        $64, AX
+	ADDQ        $64, BX
+	ADDQ        $64, R13
+	SUBQ        $2, R11
+	CMPQ        R11, $2
+	JGE         cpairs
+
+csingle:
+	TESTQ       R11, R11
+	JZ          ctail
+	VMOVUPS     (AX), Y4
+	VFMADD231PS (BX), Y4, Y0
+	VFMADD231PS (R13), Y4, Y1
+	ADDQ        $32, AX
+	ADDQ        $32, BX
+	ADDQ        $32, R13
+
+ctail:
+	TESTQ       R12, R12
+	JZ          creduce
+	VMASKMOVPS  (AX), Y7, Y4
+	VFMADD231PS (BX), Y4, Y2
+	VFMADD231PS (R13), Y4, Y3
+
+creduce:
+	VADDPS       Y2, Y0, Y0
+	VADDPS       Y3, Y1, Y1
+	VPERMILPS    $0xB1, Y1, Y1
+	VADDSUBPS    Y1, Y0, Y0
+	VEXTRACTF128 $1, Y0, X1
+	VADDPS       X1, X0, X0
+	VMOVHLPS     X0, X1, X1
+	VADDPS       X1, X0, X0
+	VMOVSD       X0, (DI)
+	ADDQ         $8, DI
+	ADDQ         DX, SI
+	DECQ         CX
+	JNZ          couter
+
+cdone:
+	VZEROUPPER
+	RET
+
+// func dotRealAVX2(dst []complex64, x *complex64, step int, hd *float32, full int, mask *[8]int32, rem int)
+//
+// dst[m] = Σₖ h[k]·x[m·step + k], k < 4·full + rem.
+TEXT ·dotRealAVX2(SB), NOSPLIT, $0-72
+	MOVQ dst_base+0(FP), DI
+	MOVQ dst_len+8(FP), CX
+	MOVQ x+24(FP), SI
+	MOVQ step+32(FP), DX
+	SHLQ $3, DX
+	MOVQ hd+40(FP), R8
+	MOVQ full+48(FP), R10
+	MOVQ mask+56(FP), R11
+	MOVQ rem+64(FP), R12
+	TESTQ CX, CX
+	JZ   rdone
+	VMOVDQU (R11), Y7
+
+router:
+	VXORPS Y0, Y0, Y0
+	VXORPS Y1, Y1, Y1
+	VXORPS Y2, Y2, Y2
+	VXORPS Y3, Y3, Y3
+	MOVQ SI, AX
+	MOVQ R8, BX
+	MOVQ R10, R11
+	CMPQ R11, $4
+	JLT  rtwo
+
+rfours:
+	VMOVUPS     (AX), Y4
+	VMOVUPS     32(AX), Y5
+	VMOVUPS     64(AX), Y6
+	VMOVUPS     96(AX), Y8
+	VFMADD231PS (BX), Y4, Y0
+	VFMADD231PS 32(BX), Y5, Y1
+	VFMADD231PS 64(BX), Y6, Y2
+	VFMADD231PS 96(BX), Y8, Y3
+	ADDQ        $128, AX
+	ADDQ        $128, BX
+	SUBQ        $4, R11
+	CMPQ        R11, $4
+	JGE         rfours
+
+rtwo:
+	CMPQ        R11, $2
+	JLT         rsingle
+	VMOVUPS     (AX), Y4
+	VMOVUPS     32(AX), Y5
+	VFMADD231PS (BX), Y4, Y0
+	VFMADD231PS 32(BX), Y5, Y1
+	ADDQ        $64, AX
+	ADDQ        $64, BX
+	SUBQ        $2, R11
+
+rsingle:
+	TESTQ       R11, R11
+	JZ          rtail
+	VMOVUPS     (AX), Y4
+	VFMADD231PS (BX), Y4, Y2
+	ADDQ        $32, AX
+	ADDQ        $32, BX
+
+rtail:
+	TESTQ       R12, R12
+	JZ          rreduce
+	VMASKMOVPS  (AX), Y7, Y4
+	VFMADD231PS (BX), Y4, Y3
+
+rreduce:
+	VADDPS       Y1, Y0, Y0
+	VADDPS       Y3, Y2, Y2
+	VADDPS       Y2, Y0, Y0
+	VEXTRACTF128 $1, Y0, X1
+	VADDPS       X1, X0, X0
+	VMOVHLPS     X0, X1, X1
+	VADDPS       X1, X0, X0
+	VMOVSD       X0, (DI)
+	ADDQ         $8, DI
+	ADDQ         DX, SI
+	DECQ         CX
+	JNZ          router
+
+rdone:
+	VZEROUPPER
+	RET
+
+// func interpAVX2(dst *complex64, x *complex64, n int, taps *float32, k, full int, mask *[8]int32, part, stride int)
+//
+// For each input j < n and phase p < u = 4·full + (u mod 4):
+// dst[j·u + p] = Σₜ ph[p][t]·x[j + t], t < k. The taps are transposed,
+// taps[(t·G + g)·8 + 2q + {0, 1}] = ph[4g + q][t] with G = full + part
+// groups of four phases, so each sample is broadcast (VBROADCASTSD) and
+// multiplies four phases at once; the group of the last u mod 4 phases
+// (part = 1) is stored with VMASKMOVPS. stride = 8·u bytes.
+TEXT ·interpAVX2(SB), NOSPLIT, $0-72
+	MOVQ dst+0(FP), DI
+	MOVQ x+8(FP), SI
+	MOVQ n+16(FP), CX
+	MOVQ k+32(FP), R9
+	MOVQ mask+48(FP), R11
+	MOVQ part+56(FP), R12
+	VMOVDQU (R11), Y7
+	MOVQ full+40(FP), DX
+	ADDQ R12, DX
+	SHLQ $5, DX
+	TESTQ CX, CX
+	JZ   idone
+
+iouter:
+	MOVQ  taps+24(FP), BX
+	MOVQ  DI, R11
+	MOVQ  full+40(FP), AX
+	TESTQ AX, AX
+	JZ    ipart
+
+igroup:
+	VXORPS Y0, Y0, Y0
+	VXORPS Y1, Y1, Y1
+	MOVQ   BX, R8
+	XORQ   R13, R13
+	MOVQ   R9, R10
+	SUBQ   $1, R10
+
+igpair:
+	CMPQ         R13, R10
+	JGE          igone
+	VBROADCASTSD (SI)(R13*8), Y2
+	VBROADCASTSD 8(SI)(R13*8), Y3
+	VFMADD231PS  (R8), Y2, Y0
+	VFMADD231PS  (R8)(DX*1), Y3, Y1
+	LEAQ         (R8)(DX*2), R8
+	ADDQ         $2, R13
+	JMP          igpair
+
+igone:
+	CMPQ         R13, R9
+	JGE          igsum
+	VBROADCASTSD (SI)(R13*8), Y2
+	VFMADD231PS  (R8), Y2, Y0
+
+igsum:
+	VADDPS  Y1, Y0, Y0
+	VMOVUPS Y0, (R11)
+	ADDQ    $32, R11
+	ADDQ    $32, BX
+	DECQ    AX
+	JNZ     igroup
+
+ipart:
+	TESTQ  R12, R12
+	JZ     inext
+	VXORPS Y0, Y0, Y0
+	VXORPS Y1, Y1, Y1
+	MOVQ   BX, R8
+	XORQ   R13, R13
+	MOVQ   R9, R10
+	SUBQ   $1, R10
+
+ippair:
+	CMPQ         R13, R10
+	JGE          ipone
+	VBROADCASTSD (SI)(R13*8), Y2
+	VBROADCASTSD 8(SI)(R13*8), Y3
+	VFMADD231PS  (R8), Y2, Y0
+	VFMADD231PS  (R8)(DX*1), Y3, Y1
+	LEAQ         (R8)(DX*2), R8
+	ADDQ         $2, R13
+	JMP          ippair
+
+ipone:
+	CMPQ         R13, R9
+	JGE          ipsum
+	VBROADCASTSD (SI)(R13*8), Y2
+	VFMADD231PS  (R8), Y2, Y0
+
+ipsum:
+	VADDPS     Y1, Y0, Y0
+	VMASKMOVPS Y0, Y7, (R11)
+
+inext:
+	ADDQ $8, SI
+	ADDQ stride+64(FP), DI
+	DECQ CX
+	JNZ  iouter
+
+idone:
+	VZEROUPPER
+	RET

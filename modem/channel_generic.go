@@ -1,0 +1,19 @@
+//go:build !amd64 || purego
+
+package modem
+
+// haveKernels is false: no assembly kernels on this build (see
+// channel_kernel.go); the decimators use their Go loops.
+const haveKernels = false
+
+func dotComplexAVX2(dst []complex64, x *complex64, step int, crd, cid *float32, full int, mask *[8]int32, rem int) {
+	panic("modem: no assembly kernels in this build")
+}
+
+func dotRealAVX2(dst []complex64, x *complex64, step int, hd *float32, full int, mask *[8]int32, rem int) {
+	panic("modem: no assembly kernels in this build")
+}
+
+func interpAVX2(dst *complex64, x *complex64, n int, taps *float32, k, full int, mask *[8]int32, part, stride int) {
+	panic("modem: no assembly kernels in this build")
+}

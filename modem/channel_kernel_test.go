@@ -1,0 +1,183 @@
+package modem
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"testing"
+)
+
+// kernelBound is the rounding bound of a float32 dot product of n terms,
+// 2·γₙ·Σ|tₖ||xₖ| with γₙ = n·u/(1 − n·u), u = 2⁻²⁴, for the difference of
+// two evaluations in different orders (Higham, Accuracy and Stability of
+// Numerical Algorithms, 2nd ed., sec. 3.1, eq. 3.5, from memory). A
+// complex term counts as two real products and one more addition.
+func kernelBound(n int, mag float64) float64 {
+	u := math.Ldexp(1, -24)
+	g := float64(n) * u / (1 - float64(n)*u)
+	return 2 * g * mag
+}
+
+// TestKernelsMatchGo compares the assembly kernels with their Go twins
+// (the reference loops) on seeded random taps and samples, for tap
+// counts covering every partial group, several steps and output counts.
+// The samples after the last window are NaN: a kernel that read past
+// its windows (the masked last group) would return NaN.
+func TestKernelsMatchGo(t *testing.T) {
+	if !haveKernels {
+		t.Skip("no assembly kernels in this build (purego, another architecture or no AVX2/FMA)")
+	}
+	r := rand.New(rand.NewPCG(5, 6))
+	for _, l := range []int{1, 2, 3, 4, 5, 7, 8, 9, 13, 16, 31, 53, 75, 128} {
+		for _, step := range []int{1, 5, 16} {
+			for _, cnt := range []int{1, 2, 7, 64} {
+				name := fmt.Sprintf("L%d_step%d_n%d", l, step, cnt)
+				cr := make([]float32, l)
+				ci := make([]float32, l)
+				for k := range l {
+					cr[k] = float32(r.NormFloat64())
+					ci[k] = float32(r.NormFloat64())
+				}
+				need := (cnt-1)*step + l
+				x := testSignal(need+8, uint64(l*1000+step*10+cnt))
+				for i := need; i < len(x); i++ {
+					x[i] = complex(float32(math.NaN()), float32(math.NaN()))
+				}
+				x = x[:need]
+				kt := newKernelTaps(cr, ci)
+				got := make([]complex64, cnt)
+				want := make([]complex64, cnt)
+				kt.dotComplex(got, x, step)
+				dotComplexGo(want, x, step, cr, ci)
+				ktr := newKernelTaps(cr, nil)
+				gotR := make([]complex64, cnt)
+				wantR := make([]complex64, cnt)
+				ktr.dotReal(gotR, x, step)
+				dotRealGo(wantR, x, step, cr)
+				for m := range cnt {
+					var mag, magR float64
+					for k := range l {
+						v := x[m*step+k]
+						ax := math.Abs(float64(real(v))) + math.Abs(float64(imag(v)))
+						mag += (math.Abs(float64(cr[k])) + math.Abs(float64(ci[k]))) * ax
+						magR += math.Abs(float64(cr[k])) * ax
+					}
+					tol := kernelBound(l+1, mag)
+					if d := cabs(got[m] - want[m]); !(d <= tol) {
+						t.Errorf("%s complex output %d: kernel %v, Go %v (difference %.3g > %.3g)", name, m, got[m], want[m], d, tol)
+					}
+					tolR := kernelBound(l, magR)
+					if d := cabs(gotR[m] - wantR[m]); !(d <= tolR) {
+						t.Errorf("%s real output %d: kernel %v, Go %v (difference %.3g > %.3g)", name, m, gotR[m], wantR[m], d, tolR)
+					}
+				}
+			}
+		}
+	}
+}
+
+// TestInterpKernelMatchesGo compares interpAVX2 with interpGo for
+// every phase count modulo 4 and odd and even taps per phase; the output
+// after the last input's phases is NaN beforehand and must stay so (the
+// masked store of the last partial group writes nothing past it).
+func TestInterpKernelMatchesGo(t *testing.T) {
+	if !haveKernels {
+		t.Skip("no assembly kernels in this build (purego, another architecture or no AVX2/FMA)")
+	}
+	r := rand.New(rand.NewPCG(7, 8))
+	nan := complex(float32(math.NaN()), float32(math.NaN()))
+	for _, u := range []int{1, 2, 3, 4, 5, 6, 7, 8, 9, 12} {
+		for _, k := range []int{1, 2, 3, 10, 11} {
+			ph := make([][]float32, u)
+			for p := range ph {
+				ph[p] = make([]float32, k)
+				for i := range ph[p] {
+					ph[p][i] = float32(r.NormFloat64())
+				}
+			}
+			const n = 37
+			x := testSignal(n+k-1, uint64(100*u+k))
+			got := make([]complex64, n*u+4)
+			for i := range got {
+				got[i] = nan
+			}
+			want := make([]complex64, n*u)
+			newInterpTaps(ph, k).interp(got[:n*u], x)
+			interpGo(want, x, ph)
+			for o := range want {
+				j, p := o/u, o%u
+				var mag float64
+				for i := range k {
+					v := x[j+i]
+					mag += math.Abs(float64(ph[p][i])) * (math.Abs(float64(real(v))) + math.Abs(float64(imag(v))))
+				}
+				// kernelBound: Higham, 2nd ed., eq. 3.5 (from memory)
+				if d := cabs(got[o] - want[o]); !(d <= kernelBound(k, mag)) {
+					t.Errorf("u=%d k=%d output %d: kernel %v, Go %v", u, k, o, got[o], want[o])
+				}
+			}
+			for o := n * u; o < len(got); o++ {
+				if !cmplxIsNaN(got[o]) {
+					t.Errorf("u=%d k=%d: kernel wrote %v past its outputs at %d", u, k, got[o], o)
+				}
+			}
+		}
+	}
+}
+
+func cmplxIsNaN(z complex64) bool { return real(z) != real(z) }
+
+func cabs(z complex64) float64 { return math.Hypot(float64(real(z)), float64(imag(z))) }
+
+// TestKernelPanics checks the bounds check before the assembly.
+func TestKernelPanics(t *testing.T) {
+	kt := newKernelTaps(make([]float32, 8), make([]float32, 8))
+	defer func() {
+		if recover() != "modem: kernel window too short" {
+			t.Error("no panic for a short window")
+		}
+	}()
+	kt.dotComplex(make([]complex64, 3), make([]complex64, 2*5+7), 5)
+}
+
+// BenchmarkKernels measures the first-stage dot products of the 2.4 MS/s
+// USB plan (31 taps every 16 samples) and a Kaiser stage (53 taps every
+// 5), by kernel and Go twin; bytes are counted as cu8 input.
+func BenchmarkKernels(b *testing.B) {
+	const n = 1 << 16
+	for _, p := range []struct{ l, d int }{{31, 16}, {53, 5}} {
+		cr := testReal(p.l, 1)
+		ci := testReal(p.l, 2)
+		x := testSignal(n+p.l, 3)
+		cnt := n / p.d
+		dst := make([]complex64, cnt)
+		kt := newKernelTaps(cr, ci)
+		ktr := newKernelTaps(cr, nil)
+		run := func(name string, f func()) {
+			b.Run(fmt.Sprintf("%s_L%d_d%d", name, p.l, p.d), func(b *testing.B) {
+				b.SetBytes(2 * n)
+				b.ReportAllocs()
+				for b.Loop() {
+					f()
+				}
+			})
+		}
+		ph := make([][]float32, 8)
+		for i := range ph {
+			ph[i] = testReal(10, uint64(10+i))
+		}
+		it := newInterpTaps(ph, 10)
+		xi := x[:n/p.d+9]
+		yi := make([]complex64, 8*(n/p.d))
+		run("interpGo_u8_k10", func() { interpGo(yi, xi, ph) })
+		if haveKernels {
+			run("interpAVX2_u8_k10", func() { it.interp(yi, xi) })
+		}
+		run("complexGo", func() { dotComplexGo(dst, x, p.d, cr, ci) })
+		run("realGo", func() { dotRealGo(dst, x, p.d, cr) })
+		if haveKernels {
+			run("complexAVX2", func() { kt.dotComplex(dst, x, p.d) })
+			run("realAVX2", func() { ktr.dotReal(dst, x, p.d) })
+		}
+	}
+}
