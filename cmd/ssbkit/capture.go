@@ -2,6 +2,7 @@ package main
 
 import (
 	"fmt"
+	"io"
 	"os"
 	"strings"
 
@@ -97,13 +98,19 @@ func (c *captureOut) Samples() int64 { return c.samples }
 // standard output. meta.Rate is the sample rate. inputs are refused as
 // targets; an existing target needs force.
 func createCapture(target string, meta iq.Meta, force bool, inputs ...string) (*captureOut, error) {
+	return createCaptureTo(os.Stdout, target, meta, force, inputs...)
+}
+
+// createCaptureTo is createCapture with target "-" written to stdout (a
+// command's env.stdout, so tests can read it).
+func createCaptureTo(stdout io.Writer, target string, meta iq.Meta, force bool, inputs ...string) (*captureOut, error) {
 	c := &captureOut{target: target, meta: meta}
 	dt := meta.Datatype
 	if dt == "" {
 		dt = iq.CF32
 	}
 	if target == "-" {
-		w, err := iq.NewRawWriter(os.Stdout, dt)
+		w, err := iq.NewRawWriter(stdout, dt)
 		if err != nil {
 			return nil, err
 		}

@@ -95,7 +95,7 @@ func runConvert(e *env, args []string) error {
 
 	outMeta := iq.Meta{Datatype: dt, Rate: m.Rate, Center: m.Center, HasCenter: m.HasCenter,
 		Description: m.Description, Datetime: m.Datetime, Annotations: m.Annotations}
-	w, err := createCapture(out, outMeta, *force, in)
+	w, err := createCaptureTo(e.stdout, out, outMeta, *force, in)
 	if err != nil {
 		return err
 	}

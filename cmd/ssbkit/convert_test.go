@@ -271,3 +271,19 @@ func TestConvertInterrupted(t *testing.T) {
 	}
 	assertNoTemp(t, dir)
 }
+
+// TestConvertStdout: OUT "-" writes raw samples of --to to standard
+// output, encoded by the format table (common practice): cu8 codes
+// 255, 0 are +1, −1, which ci16_le writes as 32767 (clamped) and −32768.
+func TestConvertStdout(t *testing.T) {
+	in := filepath.Join(t.TempDir(), "in.cu8")
+	os.WriteFile(in, []byte{255, 0, 0, 255}, 0o644)
+	code, out, errs := runCmd(t, "convert", "--rate", "1k", "--to", "ci16_le", in, "-")
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	want := []byte{0xff, 0x7f, 0x00, 0x80, 0x00, 0x80, 0xff, 0x7f}
+	if out != string(want) {
+		t.Errorf("stdout % x, want % x", out, want)
+	}
+}
