@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bytes"
 	"encoding/json"
 	"fmt"
 	"io"
@@ -14,6 +15,7 @@ const infoUsage = `ssbkit info CAPTURE [flags]`
 const infoExamples = `Examples:
   ssbkit info capture.sigmf-meta
   ssbkit info --json band.wav
+  ssbkit info --json -o band-info.json band.sigmf-data
   ssbkit info --rate 2.4M --center 7.1M dump.cu8
   some-program | ssbkit info --format cs16 --rate 48k -`
 
@@ -48,6 +50,8 @@ func finite(v float64) *float64 {
 func runInfo(e *env, args []string) error {
 	fs := newFlagSet(e, "info", infoUsage, infoExamples)
 	jsonOut := fs.Bool("json", false, "print the report as JSON")
+	out := fs.StringP("output", "o", "", "write the report here instead of standard output")
+	force := fs.Bool("force", false, "overwrite an existing output")
 	cf := addCaptureFlags(fs)
 	quiet := fs.BoolP("quiet", "q", false, "no progress bar")
 	if err := parseFlags(fs, args); err != nil {
@@ -57,6 +61,13 @@ func runInfo(e *env, args []string) error {
 		return usagef("want one CAPTURE (see ssbkit info --help)")
 	}
 	path := fs.Arg(0)
+	inputs := append([]string{path}, sigmfPartners([]string{path})...)
+	if *out != "" && *out != "-" {
+		// Refuse a bad output before reading a long capture.
+		if err := checkOutput(*out, *force, inputs...); err != nil {
+			return err
+		}
+	}
 	src, err := openCapture(e, path, cf)
 	if err != nil {
 		return err
@@ -71,12 +82,34 @@ func runInfo(e *env, args []string) error {
 		// Reported, not fatal: info's job is to describe the capture.
 		fmt.Fprintf(e.stderr, "ssbkit: info: warning: %s: %d NaN or Inf values (read as 0 in these figures)\n", src.Name(), rep.NonFinite)
 	}
-	if *jsonOut {
-		enc := json.NewEncoder(e.stdout)
-		enc.SetIndent("", "  ")
-		return enc.Encode(rep)
+	w := e.stdout
+	var of *outFile
+	if *out != "" && *out != "-" {
+		if of, err = createOutput(*out, *force, inputs...); err != nil {
+			return err
+		}
+		defer of.Abort()
+		w = of
 	}
-	printInfo(e.stdout, rep)
+	var b bytes.Buffer
+	if *jsonOut {
+		enc := json.NewEncoder(&b)
+		enc.SetIndent("", "  ")
+		if err := enc.Encode(rep); err != nil {
+			return err
+		}
+	} else {
+		printInfo(&b, rep)
+	}
+	if _, err := w.Write(b.Bytes()); err != nil {
+		if of != nil {
+			return fmt.Errorf("%s: %w", *out, unwrapPath(err))
+		}
+		return err
+	}
+	if of != nil {
+		return of.Commit()
+	}
 	return nil
 }
 

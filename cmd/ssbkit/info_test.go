@@ -180,3 +180,39 @@ func TestInfoStdin(t *testing.T) {
 		t.Errorf("exit %d\n%s%s", code, o.String(), e.String())
 	}
 }
+
+// TestInfoOutput: -o writes the report to a file through the safe-output
+// path: an existing file is kept without --force, the capture itself (or
+// its SigMF partner) is refused as the output, and nothing is left behind.
+func TestInfoOutput(t *testing.T) {
+	dir := t.TempDir()
+	p := filepath.Join(dir, "c.cu8")
+	os.WriteFile(p, []byte{255, 128, 0, 128}, 0o644)
+	rep := filepath.Join(dir, "c.json")
+	if code, out, errs := runCmd(t, "info", "--json", "--rate", "8k", "-o", rep, p); code != exitOK || out != "" {
+		t.Fatalf("exit %d, stdout %q, stderr %q", code, out, errs)
+	}
+	var m map[string]any
+	if b, err := os.ReadFile(rep); err != nil || json.Unmarshal(b, &m) != nil || m["samples"] != 2.0 {
+		t.Errorf("report file: %v %v", err, m)
+	}
+	if code, _, errs := runCmd(t, "info", "--rate", "8k", "-o", rep, p); code != exitFailure || !strings.Contains(errs, "--force") {
+		t.Errorf("existing output: exit %d %q", code, errs)
+	}
+	if code, _, errs := runCmd(t, "info", "--rate", "8k", "--force", "-o", rep, p); code != exitOK {
+		t.Errorf("--force: exit %d %q", code, errs)
+	}
+	if b, _ := os.ReadFile(rep); !strings.HasPrefix(string(b), "file ") {
+		t.Errorf("text report file: %q", b)
+	}
+	if code, _, errs := runCmd(t, "info", "--rate", "8k", "--force", "-o", p, p); code != exitUsage || !strings.Contains(errs, "also an input") {
+		t.Errorf("output = input: exit %d %q", code, errs)
+	}
+	meta := filepath.Join(dir, "r.sigmf-meta")
+	os.WriteFile(meta, []byte(`{"global":{"core:datatype":"cu8","core:sample_rate":8000}}`), 0o644)
+	os.WriteFile(filepath.Join(dir, "r.sigmf-data"), []byte{1, 2}, 0o644)
+	if code, _, errs := runCmd(t, "info", "--force", "-o", filepath.Join(dir, "r.sigmf-data"), meta); code != exitUsage || !strings.Contains(errs, "also an input") {
+		t.Errorf("output = SigMF partner: exit %d %q", code, errs)
+	}
+	assertNoTemp(t, dir)
+}
