@@ -475,62 +475,14 @@ func rawData(in string, meta iq.Meta) (io.ReadCloser, int, func([]complex64, []b
 	return f, size, dec
 }
 
-// cu8Scale and ci8Scale decode 8-bit samples by table, by the design's
-// format table: cu8 (v − 127.5)/127.5, ci8 v/128.
-var cu8Dec, ci8Dec [256]float32
-
-func init() {
-	for v := range 256 {
-		cu8Dec[v] = float32((float64(v) - 127.5) / 127.5)
-		ci8Dec[v] = float32(int8(uint8(v))) / 128
-	}
-}
-
-// rawDecoder returns the sample size and decoder of a complex datatype
-// (the design's format table; non-finite floats become 0 as in iq), or
-// nil. The test compares them with iq.Source on the same files.
+// rawDecoder returns the sample size and the decoder (iq.DecodeComplex)
+// of a complex datatype, or nil for a real or unknown one.
 func rawDecoder(dt iq.Datatype) (int, func([]complex64, []byte)) {
-	switch dt {
-	case iq.CU8:
-		return 2, func(dst []complex64, b []byte) {
-			b = b[:2*len(dst)]
-			for i := range dst {
-				dst[i] = complex(cu8Dec[b[2*i]], cu8Dec[b[2*i+1]])
-			}
-		}
-	case iq.CI8:
-		return 2, func(dst []complex64, b []byte) {
-			b = b[:2*len(dst)]
-			for i := range dst {
-				dst[i] = complex(ci8Dec[b[2*i]], ci8Dec[b[2*i+1]])
-			}
-		}
-	case iq.CI16:
-		return 4, func(dst []complex64, b []byte) {
-			b = b[:4*len(dst)]
-			for i := range dst {
-				s := b[4*i : 4*i+4 : 4*i+4]
-				vi := int16(binary.LittleEndian.Uint16(s[0:2]))
-				vq := int16(binary.LittleEndian.Uint16(s[2:4]))
-				dst[i] = complex(float32(vi)/32768, float32(vq)/32768)
-			}
-		}
-	case iq.CF32:
-		return 8, func(dst []complex64, b []byte) {
-			b = b[:8*len(dst)]
-			for i := range dst {
-				s := b[8*i : 8*i+8 : 8*i+8]
-				vi := math.Float32frombits(binary.LittleEndian.Uint32(s[0:4]))
-				vq := math.Float32frombits(binary.LittleEndian.Uint32(s[4:8]))
-				if vi-vi != 0 {
-					vi = 0
-				}
-				if vq-vq != 0 {
-					vq = 0
-				}
-				dst[i] = complex(vi, vq)
-			}
-		}
+	if !dt.Valid() || dt.IsReal() {
+		return 0, nil
 	}
-	return 0, nil
+	size := dt.SampleSize()
+	return size, func(dst []complex64, b []byte) {
+		iq.DecodeComplex(dst, b[:len(dst)*size], dt)
+	}
 }
