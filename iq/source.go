@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"path/filepath"
+	"strings"
 	"time"
 )
 
@@ -269,6 +271,12 @@ func openWAV(path string, opt Options) (*Source, error) {
 }
 
 func openSigMF(path string, opt Options) (*Source, error) {
+	if strings.EqualFold(filepath.Ext(path), ".sigmf") {
+		// The SigMF archive format: a tar file of the pair, not read here.
+		if st, err := os.Stat(path); err == nil && st.Mode().IsRegular() {
+			return nil, &UnsupportedError{File: path, What: "SigMF archive (a tar file): extract its .sigmf-meta and .sigmf-data files and give either"}
+		}
+	}
 	metaPath, dataPath := SigMFPaths(path)
 	mf, err := os.Open(metaPath)
 	if err != nil {

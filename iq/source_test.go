@@ -38,6 +38,9 @@ func TestOpenBad(t *testing.T) {
 		{write("meta-only.sigmf-meta", []byte(`{"global":{"core:datatype":"cu8","core:sample_rate":1}}`)), Options{}, "meta-only.sigmf-data: no such file"},
 		{write("cut.sigmf-meta", []byte(`{"global":{"core:datatype":"cf32_le","core:sample_rate":1}}`)), Options{}, "not a whole number of 8-byte"},
 		{"-", Options{Rate: 1}, "--format"},
+		// The SigMF archive format (SigMF Specification v1.0.0: a tar
+		// file with extension .sigmf) is not read.
+		{write("rec.sigmf", make([]byte, 1024)), Options{}, "rec.sigmf: unsupported SigMF archive"},
 	}
 	write("cut.sigmf-data", make([]byte, 12))
 	for _, c := range cases {
