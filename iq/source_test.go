@@ -1,6 +1,7 @@
 package iq
 
 import (
+	"bytes"
 	"errors"
 	"io"
 	"math"
@@ -142,6 +143,15 @@ func TestSourceBlockSizes(t *testing.T) {
 	p := filepath.Join(dir, "mono24.wav")
 	os.WriteFile(p, wavBytes(wavExtensible, 1, 24, 8000, wavPCM, d24), 0o644)
 	files[p] = Options{}
+	// A real SigMF recording (ri16_le), also read as its analytic signal.
+	base := filepath.Join(dir, "real")
+	var mb bytes.Buffer
+	if err := WriteSigMFMeta(&mb, Meta{Datatype: RI16, Rate: 8000}); err != nil {
+		t.Fatal(err)
+	}
+	os.WriteFile(base+".sigmf-meta", mb.Bytes(), 0o644)
+	os.WriteFile(base+".sigmf-data", d24[:2*25000], 0o644)
+	files[base+".sigmf-data"] = Options{}
 	for path, opt := range files {
 		read := func(bs int) []complex64 {
 			s, err := Open(path, opt)
