@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"math"
 	"sort"
+
+	"ssbkit/modem"
 )
 
 // Sidebands for MeasureOptions.Sideband and Result.Sideband.
@@ -42,9 +44,62 @@ func (o MeasureOptions) withDefaults() MeasureOptions {
 	return o
 }
 
-// FFTSize returns the FFT length the options give at rate Hz.
+// FFTSize returns the FFT length the options give at rate Hz (the
+// measuring rate: see NarrowRate).
 func (o MeasureOptions) FFTSize(rate float64) int {
 	return FFTSizeFor(rate, o.withDefaults().Resolution)
+}
+
+// Narrowing: a capture at least narrowMinDecim times wider than
+// narrowRate is first brought down, around the carrier, to the lowest
+// integer fraction of its rate that is at least narrowRate (the receive
+// chain's decimators, modem.Narrower), and measured there.
+const (
+	// narrowRate keeps the envelope well sampled for PEP: a band of
+	// ±2.85 kHz sampled at 48 kHz misses a peak between samples by at
+	// most 1 − cos²(π·2850/48000) ≈ 0.15 dB, where 19.2 kHz could miss
+	// 0.96 dB.
+	narrowRate     = 48000
+	narrowMinDecim = 4
+	// narrowAttenDB keeps aliases of other signals in a wide capture
+	// below what the figures resolve (IMD products near −110 dBc from a
+	// clean modulator).
+	narrowAttenDB = 100
+	// narrowMarginHz widens the protected band beyond the widest figure.
+	narrowMarginHz = 200
+)
+
+// protectHz returns the half-width around the carrier that the figures
+// read: the occupied-bandwidth span ±2·HIGH, the fifth-order products of
+// two tones inside the band (up to 3·HIGH − 2·LOW from the carrier) and
+// the PEP filter's stop edge, plus a margin.
+func (o MeasureOptions) protectHz() float64 {
+	return max(2*o.BandHigh, 3*o.BandHigh-2*o.BandLow, o.BandHigh+isoPass+isoTransition) + narrowMarginHz
+}
+
+// narrower returns the narrowing chain for a capture at rate Hz, or nil
+// when the capture is already narrow or the protected band does not fit.
+func (o MeasureOptions) narrower(rate float64) *modem.Narrower {
+	p := o.protectHz()
+	minRate := math.Max(narrowRate, 2.5*p)
+	if rate < narrowMinDecim*minRate || math.Abs(o.CarrierHz)+p >= rate/2 {
+		return nil
+	}
+	nr, err := modem.NewNarrower(rate, o.CarrierHz, minRate, p, narrowAttenDB)
+	if err != nil || nr.Decim() < narrowMinDecim {
+		return nil
+	}
+	return nr
+}
+
+// NarrowRate returns the rate at which a capture at rate Hz is measured:
+// rate itself, or the narrowed rate (see Measurer).
+func (o MeasureOptions) NarrowRate(rate float64) float64 {
+	o = o.withDefaults()
+	if nr := o.narrower(rate); nr != nil {
+		return nr.Rate()
+	}
+	return rate
 }
 
 // Check returns an error, saying what would work, when the options do not
@@ -79,17 +134,28 @@ func (o MeasureOptions) Check(rate float64, samples int64) error {
 		return fmt.Errorf("both sidebands of %g:%g Hz around a carrier at %g Hz do not fit in the capture (±%g Hz): use a HIGH below %g or a carrier nearer the centre",
 			o.BandLow, o.BandHigh, o.CarrierHz, nyq, math.Floor(room))
 	}
-	n := o.FFTSize(rate)
-	if samples >= 0 && samples < int64(n) {
-		return tooShort(rate, samples, o.Resolution, n)
+	if samples >= 0 {
+		if nr := o.narrower(rate); nr != nil {
+			return shortness(rate, samples, o.Resolution, nr.Rate(), nr.Decim(), nr.Settle())
+		}
+		return shortness(rate, samples, o.Resolution, rate, 1, 0)
 	}
 	return nil
 }
 
-func tooShort(rate float64, samples int64, res float64, n int) error {
-	coarser := rate / float64(nextPow2Floor(int(max(samples, 2))))
+// shortness returns tooShort's error when samples at rate do not give one
+// FFT segment at the measuring rate mrate = rate/decim after settle
+// outputs are dropped, and nil otherwise.
+func shortness(rate float64, samples int64, res, mrate float64, decim, settle int) error {
+	n := FFTSizeFor(mrate, res)
+	need := int64(n+settle) * int64(decim)
+	if samples >= need {
+		return nil
+	}
+	usable := max(samples/int64(decim)-int64(settle), 2)
+	coarser := mrate / float64(nextPow2Floor(int(usable)))
 	return fmt.Errorf("capture has %d samples (%.3g s); a resolution of %g Hz needs at least %d (%.3g s): use a resolution of %.3g Hz or coarser",
-		samples, float64(samples)/rate, res, n, float64(n)/rate, coarser)
+		samples, float64(samples)/rate, res, need, float64(need)/rate, coarser)
 }
 
 // nextPow2Floor returns the largest power of two ≤ n (n ≥ 1).
@@ -105,14 +171,30 @@ func nextPow2Floor(n int) int {
 // Hann Welch spectrum for band powers and occupied bandwidth, a flat-top
 // one for tone and carrier levels, and the envelope peak of the signal
 // isolated around its carrier.
+//
+// A wide capture (at least four times 48 kHz, or 2.5 times the protected
+// band when that is wider) is first narrowed: the band around the carrier
+// is shifted to zero and decimated to the lowest integer fraction of the
+// capture rate that is at least 48 kHz by modem.Narrower (aliases 100 dB
+// down, ripple below 0.01 dB), and measured there; the outputs during the
+// chain's start are dropped. The figures are the same (the tests hold
+// both paths to the same tolerances); the spectra then cover the
+// measuring rate around the carrier.
 type Measurer struct {
 	opt     MeasureOptions
-	rate    float64
+	rate    float64 // capture rate
+	mrate   float64 // measuring rate
 	hann    *Accumulator
 	flat    *Accumulator
 	iso     *bandIsolator
-	peak    float64 // of the raw samples, when no isolation is needed
+	peak    float64 // of the measured samples, when no isolation is needed
 	samples int64
+
+	narrow  *modem.Narrower
+	nbuf    []complex64
+	drop    int     // narrowed outputs still to drop (chain settling)
+	centre  float64 // capture frequency at the measured spectra's centre
+	carrier float64 // carrier offset at the measuring rate
 }
 
 // isolation margins around the band for the PEP filter: pass to
@@ -130,23 +212,56 @@ func NewMeasurer(rate float64, samples int64, opt MeasureOptions) (*Measurer, er
 		return nil, err
 	}
 	opt = opt.withDefaults()
-	n := opt.FFTSize(rate)
-	m := &Measurer{
-		opt:  opt,
-		rate: rate,
-		hann: NewAccumulatorOptions(n, rate, Options{Window: Hann}),
-		flat: NewAccumulatorOptions(n, rate, Options{Window: FlatTop}),
+	m := &Measurer{opt: opt, rate: rate, mrate: rate, carrier: opt.CarrierHz}
+	if m.narrow = opt.narrower(rate); m.narrow != nil {
+		m.mrate = m.narrow.Rate()
+		m.drop = m.narrow.Settle()
+		m.centre, m.carrier = opt.CarrierHz, 0
 	}
+	n := opt.FFTSize(m.mrate)
+	m.hann = NewAccumulatorOptions(n, m.mrate, Options{Window: Hann})
+	m.flat = NewAccumulatorOptions(n, m.mrate, Options{Window: FlatTop})
 	half := opt.BandHigh + isoPass
-	if stop := half + isoTransition; math.Abs(opt.CarrierHz)+stop < rate/2 {
-		m.iso = newBandIsolator(rate, opt.CarrierHz, half, isoTransition)
+	if stop := half + isoTransition; math.Abs(m.carrier)+stop < m.mrate/2 {
+		m.iso = newBandIsolator(m.mrate, m.carrier, half, isoTransition)
 	}
 	return m, nil
+}
+
+// MeasureRate returns the rate in Hz at which the capture is measured:
+// the capture's, or the narrowed rate.
+func (m *Measurer) MeasureRate() float64 { return m.mrate }
+
+// valid returns the frequencies, as offsets from the capture centre, that
+// the measured spectra hold without the narrowing's transition bands.
+func (m *Measurer) valid() (lo, hi float64) {
+	if m.narrow == nil {
+		return -m.rate / 2, m.rate / 2
+	}
+	p := m.opt.protectHz()
+	return m.centre - p, m.centre + p
 }
 
 // Add feeds the next block of the capture.
 func (m *Measurer) Add(block []complex64) {
 	m.samples += int64(len(block))
+	if m.narrow != nil {
+		for len(block) > 0 {
+			c := min(len(block), 1<<16)
+			m.nbuf = m.narrow.Process(m.nbuf, block[:c])
+			block = block[c:]
+			y := m.nbuf
+			k := min(m.drop, len(y))
+			m.drop -= k
+			m.add(y[k:])
+		}
+		return
+	}
+	m.add(block)
+}
+
+// add feeds samples at the measuring rate.
+func (m *Measurer) add(block []complex64) {
 	m.hann.Add(block)
 	m.flat.Add(block)
 	if m.iso != nil {
@@ -182,6 +297,10 @@ type Result struct {
 	PEPDBFS                  float64
 	CarrierDBc               float64
 	CarrierDBFS              float64
+	// MeasureRateHz is the rate the spectra were measured at (RateHz, or
+	// the narrowed rate around the carrier).
+	MeasureRateHz float64
+
 	// OccupiedBandwidthHz is the 99 % bandwidth; OccupiedLowHz and
 	// OccupiedHighHz its edges as offsets from the carrier.
 	OccupiedBandwidthHz           float64
@@ -225,21 +344,31 @@ const minSignalDB = 6
 // when neither sideband rises minSignalDB above the noise.
 func (m *Measurer) Result() (*Result, error) {
 	o := m.opt
-	n := m.hann.Len()
 	if m.hann.Segments() == 0 {
-		return nil, tooShort(m.rate, m.samples, o.Resolution, n)
+		decim, settle := 1, 0
+		if m.narrow != nil {
+			decim, settle = m.narrow.Decim(), m.narrow.Settle()
+		}
+		if err := shortness(m.rate, m.samples, o.Resolution, m.mrate, decim, settle); err != nil {
+			return nil, err
+		}
+		return nil, errors.New("no complete FFT segment")
 	}
 	if m.iso != nil {
 		m.iso.flush()
 		m.peak = m.iso.peak
 	}
 	hs, fs := m.hann.Spectrum(), m.flat.Spectrum()
+	hs.Centre, fs.Centre = m.centre, m.centre
 	c := o.CarrierHz
 	r := &Result{
-		RateHz: m.rate, CarrierOffsetHz: c, BandHz: [2]float64{o.BandLow, o.BandHigh},
+		RateHz: m.rate, MeasureRateHz: m.mrate, CarrierOffsetHz: c, BandHz: [2]float64{o.BandLow, o.BandHigh},
 		Samples: m.samples, Spectrum: hs, Lines: fs,
 	}
-	floor := NoiseFloor(hs.Density, m.rate, 60)
+	vlo, vhi := m.valid()
+	j0 := max(0, int(math.Ceil(hs.Index(vlo))))
+	j1 := min(hs.Len(), int(math.Floor(hs.Index(vhi)))+1)
+	floor := NoiseFloor(hs.Density[j0:j1], hs.BinHz()*float64(j1-j0), 60)
 	r.NoiseDBFSPerHz = dB(floor)
 	up := hs.BandPower(c+o.BandLow, c+o.BandHigh)
 	lo := hs.BandPower(c-o.BandHigh, c-o.BandLow)
@@ -272,18 +401,18 @@ func (m *Measurer) Result() (*Result, error) {
 
 	// occupied bandwidth over the carrier ± 2·BandHigh, within the capture
 	span := 2 * o.BandHigh
-	a, z := math.Max(c-span, -m.rate/2), math.Min(c+span, m.rate/2)
+	a, z := math.Max(c-span, vlo), math.Min(c+span, vhi)
 	if l, h, ok := hs.OccupiedBandwidth(a, z, 0.99); ok {
 		r.OccupiedLowHz, r.OccupiedHighHz = l-c, h-c
 		r.OccupiedBandwidthHz = h - l
 	}
-	m.twoTone(r, side, want)
+	m.twoTone(r, side, want, floor)
 	return r, nil
 }
 
 // twoTone looks for two dominant tones in the wanted band and measures
 // the intermodulation products.
-func (m *Measurer) twoTone(r *Result, side string, want float64) {
+func (m *Measurer) twoTone(r *Result, side string, want, floor float64) {
 	o, fs := m.opt, r.Lines
 	c := o.CarrierHz
 	sign := 1.0
@@ -337,13 +466,13 @@ func (m *Measurer) twoTone(r *Result, side string, want float64) {
 	ref := (p1.p + p2.p) / 2 // one tone: the mean of the two
 	level := func(audio float64) (Tone, bool) {
 		f := c + sign*audio
-		if math.Abs(f) >= m.rate/2 {
+		if lo, hi := m.valid(); f < lo || f >= hi {
 			return Tone{}, false
 		}
 		_, p, ok := fs.Tone(f, fs.BinHz())
 		return Tone{f - c, dB(p)}, ok
 	}
-	lineNoise := dB(NoiseFloor(r.Spectrum.Density, m.rate, 60) * fs.BinHz() * fs.ENBW)
+	lineNoise := dB(floor * fs.BinHz() * fs.ENBW)
 	worst := func(orders ...float64) (float64, bool) {
 		best := math.Inf(-1)
 		for _, a := range orders {

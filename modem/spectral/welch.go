@@ -471,8 +471,12 @@ func centre(dst, src []float64, inv []int32, k float64) {
 
 // Spectrum is an averaged power spectral density in centred order.
 type Spectrum struct {
-	// Rate is the sample rate in Hz; the spectrum covers [−Rate/2, Rate/2).
+	// Rate is the sample rate in Hz; the spectrum covers
+	// Centre + [−Rate/2, Rate/2).
 	Rate float64
+	// Centre is the frequency of the middle bin Len()/2: 0 for a capture,
+	// the carrier offset for one measured after narrowing (Measurer).
+	Centre float64
 	// Density[j] is the power per Hz at Freq(j), in (full-scale
 	// amplitude)² per Hz: white noise with E|x|² = σ² reads σ²/Rate.
 	Density []float64
@@ -492,12 +496,12 @@ func (s *Spectrum) BinHz() float64 { return s.Rate / float64(len(s.Density)) }
 
 // Freq returns the frequency of bin j in Hz.
 func (s *Spectrum) Freq(j int) float64 {
-	return float64(j-len(s.Density)/2) * s.BinHz()
+	return s.Centre + float64(j-len(s.Density)/2)*s.BinHz()
 }
 
 // Index returns the fractional bin index of frequency f.
 func (s *Spectrum) Index(f float64) float64 {
-	return f/s.BinHz() + float64(len(s.Density)/2)
+	return (f-s.Centre)/s.BinHz() + float64(len(s.Density)/2)
 }
 
 // BandPower returns the power between lo and hi Hz: the integral of the
