@@ -14,7 +14,8 @@ const convertExamples = `The output format comes from OUT's extension: .wav, .si
 or raw .cu8 .cs8 .ci8 .cs16 .ci16 .cf32 .raw ("-" writes raw to standard
 output). --to picks the sample type inside WAV, SigMF and "-".
 A capture holding NaN or Inf values is refused rather than written with
-zeros in their place; "ssbkit info" counts them.
+zeros in their place; "ssbkit info" counts them. A raw file whose size is
+not a whole number of samples is refused as well.
 
 Examples:
   ssbkit convert --rate 2.4M --center 7.1M dump.cu8 dump.sigmf-meta

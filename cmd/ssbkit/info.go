@@ -12,7 +12,14 @@ import (
 
 const infoUsage = `ssbkit info CAPTURE [flags]`
 
-const infoExamples = `Examples:
+const infoExamples = `Reports format, rate, centre, length, peak and RMS level (dBFS, 0 dBFS is
+|x| = 1), DC offset, clipped samples and the blind I/Q imbalance estimate.
+A raw file whose size is not a whole number of samples is refused (a wrong
+--format or a cut file is likelier than a meaningful tail); on standard
+input the whole samples are read and the partial one is an error. NaN or
+Inf values in a float capture are counted, read as 0, and warned about.
+
+Examples:
   ssbkit info capture.sigmf-meta
   ssbkit info --json band.wav
   ssbkit info --json -o band-info.json band.sigmf-data
