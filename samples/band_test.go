@@ -82,6 +82,33 @@ func TestBandBlockwise(t *testing.T) {
 	}
 }
 
+// TestScenarioAllocs: the band and bench-test generators read block after
+// block without allocating, so a capture of any length needs bounded memory.
+func TestScenarioAllocs(t *testing.T) {
+	cfg := DefaultBandConfig()
+	cfg.Seconds = 60
+	band, err := NewBand(cfg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	bcfg := DefaultBenchConfig()
+	bcfg.Seconds = 60
+	bench, err := NewBench(bcfg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	buf := make([]complex64, 4096)
+	for name, r := range map[string]interface {
+		Read([]complex64) (int, error)
+	}{"band": band, "bench": bench} {
+		r.Read(buf) // the first block starts every station's pipeline
+		r.Read(buf)
+		if a := testing.AllocsPerRun(20, func() { r.Read(buf) }); a != 0 {
+			t.Errorf("%s: %v allocations per block, want 0", name, a)
+		}
+	}
+}
+
 func BenchmarkBand(b *testing.B) {
 	cfg := DefaultBandConfig()
 	cfg.Seconds = 3600
