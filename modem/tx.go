@@ -419,10 +419,14 @@ func (m *Modulator) Flush(dst []complex64) []complex64 {
 // (the sampled peak of a band-limited signal at 8× its band falls short of
 // the true peak by at most 1 − cos(π/16), 0.17 dB; common practice).
 type Survey struct {
-	fr   *front
-	up   *Resampler
-	lv   AudioLevels
-	z, y []complex64
+	fr *front
+	up interface {
+		Process(dst, src []complex64) []complex64
+		Delay() float64
+	}
+	// env2 is the peak of |z|², hi and lo the extremes of its real part.
+	env2, hi, lo float32
+	z, y         []complex64
 }
 
 // NewSurvey returns a survey for cfg (the modulator's, without Levels).
@@ -444,11 +448,24 @@ func NewSurvey(cfg TxConfig) (*Survey, error) {
 	if err != nil {
 		return nil, err
 	}
-	up, err := NewResamplerSpec(ResamplerSpec{InRate: fr.rate, OutRate: 8 * fr.rate, Pass: fr.pass, AttenDB: txAttenDB})
-	if err != nil {
-		return nil, err
+	s := &Survey{fr: fr, hi: float32(math.Inf(-1)), lo: float32(math.Inf(1))}
+	spec := ResamplerSpec{InRate: fr.rate, OutRate: 8 * fr.rate, Pass: fr.pass, AttenDB: txAttenDB}
+	if useMixInterpAVX2 {
+		// the vector interpolation kernel, where it runs
+		if up, err := newOffsetResampler(spec, 0); err != nil {
+			return nil, err
+		} else if up != nil {
+			s.up = up
+		}
 	}
-	return &Survey{fr: fr, up: up, lv: AudioLevels{Max: math.Inf(-1), Min: math.Inf(1)}}, nil
+	if s.up == nil {
+		up, err := NewResamplerSpec(spec)
+		if err != nil {
+			return nil, err
+		}
+		s.up = up
+	}
+	return s, nil
 }
 
 // Process takes the next block of audio.
@@ -461,19 +478,28 @@ func (s *Survey) Process(src []float32) {
 	// (the default splitter's I path is a pure delay).
 	z := s.fr.split.Process(s.z[:len(x)], x)
 	s.y = s.up.Process(s.y[:0], z)
+	// |z|² and the extremes of the real part, compared in float32 (the
+	// samples are float32); the square root is taken once, in Levels.
+	e2, hi, lo := s.env2, s.hi, s.lo
 	for _, v := range s.y {
-		e := math.Hypot(float64(real(v)), float64(imag(v)))
-		s.lv.EnvelopePeak = math.Max(s.lv.EnvelopePeak, e)
-		r := float64(real(v))
-		s.lv.Max = math.Max(s.lv.Max, r)
-		s.lv.Min = math.Min(s.lv.Min, r)
+		r, i := real(v), imag(v)
+		if p := r*r + i*i; p > e2 {
+			e2 = p
+		}
+		if r > hi {
+			hi = r
+		}
+		if r < lo {
+			lo = r
+		}
 	}
+	s.env2, s.hi, s.lo = e2, hi, lo
 }
 
 // Levels returns the figures of the audio seen so far (after draining the
 // filters with Flush).
 func (s *Survey) Levels() AudioLevels {
-	lv := s.lv
+	lv := AudioLevels{Max: float64(s.hi), Min: float64(s.lo), EnvelopePeak: math.Sqrt(float64(s.env2))}
 	lv.Peak = math.Max(lv.Max, -lv.Min)
 	if math.IsInf(lv.Peak, 0) {
 		return AudioLevels{}

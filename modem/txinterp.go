@@ -192,11 +192,19 @@ func mixInterpGo(dst, win []complex64, taps []float32, n, k, groups, up int, cpl
 	}
 }
 
+// chainStage is one stage of an offsetResampler.
+type chainStage interface {
+	process(dst, src []complex64) []complex64
+	reset()
+	maxOut(n int) int
+}
+
 // offsetResampler is the transmit chain's resampler when its last stage is
-// an integer interpolation: the earlier stages as in Resampler, then an
-// mixInterp carrying the offset mixer.
+// an integer interpolation: the earlier stages as in Resampler (integer
+// interpolations also by mixInterp, with real taps), then a mixInterp
+// carrying the offset mixer.
 type offsetResampler struct {
-	pre     []cstage
+	pre     []chainStage
 	scratch [][]complex64
 	last    *mixInterp
 	delay   float64
@@ -217,8 +225,14 @@ func newOffsetResampler(spec ResamplerSpec, offset float64) (*offsetResampler, e
 	n := resampleChunk
 	last := len(plans) - 1
 	for _, p := range plans[:last] {
-		st := cstage{polyState: newPolyState(p)}
-		st.buf = make([]complex64, st.k-1, st.k-1+n)
+		var st chainStage
+		if p.down == 1 && p.up >= 2 {
+			st = newMixInterp(p, 0)
+		} else {
+			cs := &cstage{polyState: newPolyState(p)}
+			cs.buf = make([]complex64, cs.k-1, cs.k-1+n)
+			st = cs
+		}
 		n = st.maxOut(n)
 		r.scratch = append(r.scratch, make([]complex64, 0, n))
 		r.pre = append(r.pre, st)
@@ -229,15 +243,18 @@ func newOffsetResampler(spec ResamplerSpec, offset float64) (*offsetResampler, e
 
 // MaxOut returns the most outputs Process gives for n inputs.
 func (r *offsetResampler) MaxOut(n int) int {
-	for i := range r.pre {
-		n = r.pre[i].maxOut(n)
+	for _, st := range r.pre {
+		n = st.maxOut(n)
 	}
 	return r.last.maxOut(n)
 }
 
+// Delay returns the group delay in output samples, as Resampler.Delay.
+func (r *offsetResampler) Delay() float64 { return r.delay }
+
 func (r *offsetResampler) Reset() {
-	for i := range r.pre {
-		r.pre[i].reset()
+	for _, st := range r.pre {
+		st.reset()
 	}
 	r.last.reset()
 }
@@ -251,8 +268,8 @@ func (r *offsetResampler) Process(dst, src []complex64) []complex64 {
 	dst = dst[:0]
 	for off := 0; off < len(src); off += resampleChunk {
 		x := src[off : off+min(resampleChunk, len(src)-off)]
-		for i := range r.pre {
-			x = r.pre[i].process(r.scratch[i][:0], x)
+		for i, st := range r.pre {
+			x = st.process(r.scratch[i][:0], x)
 		}
 		dst = r.last.process(dst, x)
 	}
