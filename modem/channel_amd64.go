@@ -8,11 +8,12 @@ import "golang.org/x/sys/cpu"
 // run on this CPU; without them the decimators use their Go loops.
 var haveKernels = cpu.X86.HasAVX2 && cpu.X86.HasFMA
 
-// dotComplexAVX2 is dotComplexGo on the kernel layout (see kernelTaps):
-// len(dst) outputs from windows of 4·full + rem taps at x, x+step, ….
+// dotComplexAVX2 is dotComplexGo then rotate, on the kernel layout (see
+// kernelTaps): len(dst) outputs from windows of 4·full + rem taps at x,
+// x+step, …, output m multiplied by p·rᵐ.
 //
 //go:noescape
-func dotComplexAVX2(dst []complex64, x *complex64, step int, crd, cid *float32, full int, mask *[8]int32, rem int)
+func dotComplexAVX2(dst []complex64, x *complex64, step int, crd, cid *float32, full int, mask *[8]int32, rem int, p, r complex128)
 
 // dotRealAVX2 is dotRealGo on the kernel layout.
 //

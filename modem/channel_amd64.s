@@ -12,13 +12,16 @@
 // register lane by lane. A last partial group of rem samples is read
 // with VMASKMOVPS, which touches no memory in its masked lanes.
 
-// func dotComplexAVX2(dst []complex64, x *complex64, step int, crd, cid *float32, full int, mask *[8]int32, rem int)
+// func dotComplexAVX2(dst []complex64, x *complex64, step int, crd, cid *float32, full int, mask *[8]int32, rem int, p, r complex128)
 //
-// dst[m] = Σₖ (cr[k] + j·ci[k])·x[m·step + k], k < 4·full + rem.
+// dst[m] = p·rᵐ·Σₖ (cr[k] + j·ci[k])·x[m·step + k], k < 4·full + rem.
 // Two accumulators per part, A = Σ cr·(xr, xi) and B = Σ ci·(xr, xi);
 // at the end (A.re − B.im, A.im + B.re) is one VPERMILPS and one
-// VADDSUBPS, then the four complex lanes are summed.
-TEXT ·dotComplexAVX2(SB), NOSPLIT, $0-80
+// VADDSUBPS, then the four complex lanes are summed. The phasor q = p·rᵐ
+// runs as a float64 recursion in X8 (q ← q·r by VFMADDSUB, as (qr·rr −
+// qi·ri, qi·rr + qr·ri)), off the critical path of the dot products, and
+// multiplies the sum after rounding to float32.
+TEXT ·dotComplexAVX2(SB), NOSPLIT, $0-112
 	MOVQ dst_base+0(FP), DI
 	MOVQ dst_len+8(FP), CX
 	MOVQ x+24(FP), SI
@@ -32,6 +35,10 @@ TEXT ·dotComplexAVX2(SB), NOSPLIT, $0-80
 	TESTQ CX, CX
 	JZ   cdone
 	VMOVDQU (R11), Y7
+	VMOVSD   p_real+80(FP), X8
+	VMOVHPD  p_imag+88(FP), X8, X8
+	VMOVDDUP r_real+96(FP), X9
+	VMOVDDUP r_imag+104(FP), X10
 
 couter:
 	VXORPS Y0, Y0, Y0
@@ -85,11 +92,23 @@ creduce:
 	VADDPS       X1, X0, X0
 	VMOVHLPS     X0, X1, X1
 	VADDPS       X1, X0, X0
-	VMOVSD       X0, (DI)
-	ADDQ         $8, DI
-	ADDQ         DX, SI
-	DECQ         CX
-	JNZ          couter
+
+	// rotate by q in float32, then q ← q·r in float64
+	VCVTPD2PSX     X8, X11
+	VMOVSLDUP      X11, X12
+	VMOVSHDUP      X11, X13
+	VPERMILPS      $0xB1, X0, X1
+	VMULPS         X13, X1, X1
+	VFMADDSUB213PS X1, X12, X0
+	VMOVSD         X0, (DI)
+	VPERMILPD      $1, X8, X11
+	VMULPD         X10, X11, X11
+	VFMADDSUB213PD X11, X9, X8
+
+	ADDQ DX, SI
+	ADDQ $8, DI
+	DECQ CX
+	JNZ  couter
 
 cdone:
 	VZEROUPPER

@@ -6,7 +6,7 @@ package modem
 // channel_kernel.go); the decimators use their Go loops.
 const haveKernels = false
 
-func dotComplexAVX2(dst []complex64, x *complex64, step int, crd, cid *float32, full int, mask *[8]int32, rem int) {
+func dotComplexAVX2(dst []complex64, x *complex64, step int, crd, cid *float32, full int, mask *[8]int32, rem int, p, r complex128) {
 	panic("modem: no assembly kernels in this build")
 }
 

@@ -111,14 +111,15 @@ func dotRealGo(dst, x []complex64, step int, h []float32) {
 	}
 }
 
-// dotComplex computes dst[m] = Σₖ t[k]·x[m·step + k] with the complex
-// taps t by the assembly kernel. It panics if x is too short.
-func (t *kernelTaps) dotComplex(dst, x []complex64, step int) {
+// dotRotate computes dst[m] = p·rᵐ·Σₖ t[k]·x[m·step + k] with the
+// complex taps t by the assembly kernel (the rotation as in rotate). It
+// panics if x is too short.
+func (t *kernelTaps) dotRotate(dst, x []complex64, step int, p, r complex128) {
 	checkWindow(dst, x, step, t.n)
 	if len(dst) == 0 {
 		return
 	}
-	dotComplexAVX2(dst, &x[0], step, &t.re[0], &t.im[0], t.full, &kernelMasks[t.rem], t.rem)
+	dotComplexAVX2(dst, &x[0], step, &t.re[0], &t.im[0], t.full, &kernelMasks[t.rem], t.rem, p, r)
 }
 
 // dotReal computes dst[m] = Σₖ t[k]·x[m·step + k] with the real taps t

@@ -163,12 +163,13 @@ func (s *ShiftDecimator) blockDot(dst, win []complex64, a, n, nb int64) []comple
 		dst = nd
 	}
 	out := dst[k : k+cnt]
+	p := phasor(uint64(n) * s.step)
 	if s.kt != nil {
-		s.kt.dotComplex(out, win[j0:], s.d)
+		s.kt.dotRotate(out, win[j0:], s.d, p, s.rot)
 	} else {
 		dotComplexGo(out, win[j0:], s.d, s.cr, s.ci)
+		rotate(out, p, s.rot)
 	}
-	rotate(out, phasor(uint64(n)*s.step), s.rot)
 	return dst[:k+cnt]
 }
 
