@@ -2,13 +2,16 @@ package iq
 
 import (
 	"bytes"
+	"cmp"
 	"errors"
 	"io"
 	"math"
 	"os"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
+	"time"
 )
 
 // The fuzz targets check that no input makes a parser panic or read
@@ -33,6 +36,19 @@ func FuzzReadSigMFMeta(f *testing.F) {
 			var out bytes.Buffer
 			if err := WriteSigMFMeta(&out, m); err != nil {
 				t.Fatalf("parsed metadata does not write: %v", err)
+			}
+			// What we write reads back to the same description (the
+			// writer keeps core:datetime to the millisecond and sorts the
+			// annotations by core:sample_start, as SigMF v1.0.0 asks).
+			back, err := ReadSigMFMeta(&out, "fuzz-out")
+			if err != nil {
+				t.Fatalf("written metadata does not read: %v\n%s", err, out.String())
+			}
+			m.Datetime = m.Datetime.Truncate(time.Millisecond)
+			slices.SortStableFunc(m.Annotations, func(a, b Annotation) int { return cmp.Compare(a.SampleStart, b.SampleStart) })
+			if back.Datatype != m.Datatype || back.Rate != m.Rate || back.HasCenter != m.HasCenter || back.Center != m.Center ||
+				back.Description != m.Description || !back.Datetime.Equal(m.Datetime) || !slices.Equal(back.Annotations, m.Annotations) {
+				t.Fatalf("round trip changed the metadata:\n%+v\n%+v", m, back)
 			}
 		}
 	})
