@@ -27,6 +27,11 @@ const measureExamples = `Figures (see DESIGN definitions):
   I/Q imbalance     blind estimate over the whole capture (Q gain over I,
                     Q's phase departure from 90°, image rejection)
 
+A wide capture is first brought down around the carrier to 48 kHz (or the
+lowest whole fraction of its rate above that) by the receiver's decimators
+and measured there: the figures are the same, and a minute of 2.4 MS/s
+takes seconds. The I/Q imbalance still comes from the whole capture.
+
 Verdicts compare each figure with what is usually expected of an amateur
 SSB transmitter (common practice, not a regulation): opposite sideband and
 carrier 40 dB or more down, IMD3 better than −30 dBc, IMD5 better than
@@ -278,7 +283,11 @@ func atNoiseNote(atNoise bool) string {
 
 func writeMeasureText(w io.Writer, in string, meta iq.Meta, r *spectral.Result, imb iq.Imbalance) error {
 	p := func(format string, a ...any) { fmt.Fprintf(w, format, a...) }
-	p("%s: %.0f S/s, %d samples (%.2f s)\n", in, r.RateHz, r.Samples, float64(r.Samples)/r.RateHz)
+	p("%s: %.0f S/s, %d samples (%.2f s)", in, r.RateHz, r.Samples, float64(r.Samples)/r.RateHz)
+	if r.MeasureRateHz != r.RateHz {
+		p(", measured at %.0f S/s around the carrier", r.MeasureRateHz)
+	}
+	p("\n")
 	car := fmt.Sprintf("%+.1f Hz", r.CarrierOffsetHz)
 	if meta.HasCenter {
 		car += fmt.Sprintf(" (%.1f Hz)", meta.Center+r.CarrierOffsetHz)

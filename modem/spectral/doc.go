@@ -19,7 +19,13 @@
 // 0.01 dB wherever the tone falls between bins, so tone and carrier levels
 // are read from a flat-top spectrum and band powers from a Hann one.
 // Windows are periodic ("DFT-even") versions of gonum's dsp/window
-// weights; the FFT is gonum's dsp/fourier.
+// weights. Power-of-two lengths are transformed by the package's radix-4
+// FFT, which leaves the bins in digit-reversed order: the periodograms
+// are summed in that order and put in frequency order once, when the
+// spectrum is read (other lengths use gonum's dsp/fourier). With
+// Options.Workers > 1 a batch of segments is transformed on several
+// goroutines and each bin's sum still takes the segments in stream order,
+// so the result does not depend on the number of workers.
 //
 // A Waterfall keeps, beside the average, a bounded time–frequency picture:
 // rows of summed periodograms that merge pairwise when they reach twice
@@ -62,4 +68,15 @@
 //
 // A product or carrier below the noise reads as the noise in its bin: the
 // figure is then an upper bound.
+//
+// Every figure lies within P = max(2·hi, 3·hi − 2·lo, hi + 850 Hz) + 200 Hz
+// of the carrier. A capture at least four times wider than
+// max(48 kHz, 2.5·P) is therefore first narrowed (modem.Narrower): the
+// carrier is mixed to zero and the capture decimated by an integer to at
+// least that rate, aliases into ±P at least 100 dB down, and the figures
+// are measured there (the noise floor from the bins within ±P). 48 kHz
+// keeps the envelope sampled finely enough for PEP: a peak of a signal
+// within ±2.85 kHz falls between samples by at most
+// 1 − cos²(π·2850/48000) ≈ 0.15 dB. The I/Q imbalance is a property of
+// the whole capture and is estimated from it by the iq package.
 package spectral
