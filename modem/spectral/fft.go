@@ -42,6 +42,7 @@ type radix4 struct {
 	n    int
 	tw   [][]complex128 // per radix-4 pass: W^i, W^{2i}, W^{3i} for each i
 	perm []int32        // perm[p] is the bin (FFT order) left at position p
+	last int            // block length left for tail: 1, 2, 4 or 8
 }
 
 // newRadix4 returns the plan for length n, a power of two ≥ 1.
@@ -50,7 +51,8 @@ func newRadix4(n int) *radix4 {
 		panic("spectral: radix-4 FFT length not a power of two")
 	}
 	f := &radix4{n: n, perm: make([]int32, n)}
-	for l := n; l >= 16; l /= 4 {
+	l := n
+	for ; l >= 16; l /= 4 {
 		m := l / 4
 		t := make([]complex128, 3*m)
 		for i := range m {
@@ -61,6 +63,7 @@ func newRadix4(n int) *radix4 {
 		}
 		f.tw = append(f.tw, t)
 	}
+	f.last = l
 	for p := range f.perm {
 		f.perm[p] = int32(digitReversed(p, n))
 	}
@@ -87,32 +90,129 @@ func (f *radix4) transform(x []complex128) {
 	x = x[:n]
 	l := n
 	for st := 0; l >= 16; st, l = st+1, l/4 {
-		m := l / 4
-		tw := f.tw[st][:3*m]
-		for s := 0; s < n; s += l {
-			b := x[s : s+l]
-			x0 := b[:m]
-			x1 := b[m : 2*m][:len(x0)]
-			x2 := b[2*m : 3*m][:len(x0)]
-			x3 := b[3*m : 4*m][:len(x0)]
-			for i := range x0 {
-				a, bb, c, d := x0[i], x1[i], x2[i], x3[i]
-				t0r, t0i := real(a)+real(c), imag(a)+imag(c)
-				t1r, t1i := real(a)-real(c), imag(a)-imag(c)
-				t2r, t2i := real(bb)+real(d), imag(bb)+imag(d)
-				t3r, t3i := imag(bb)-imag(d), real(d)-real(bb) // −j·(b − d)
-				w := tw[3*i : 3*i+3]
-				w1, w2, w3 := w[0], w[1], w[2]
-				x0[i] = complex(t0r+t2r, t0i+t2i)
-				ur, ui := t1r+t3r, t1i+t3i
-				x1[i] = complex(ur*real(w1)-ui*imag(w1), ur*imag(w1)+ui*real(w1))
-				ur, ui = t0r-t2r, t0i-t2i
-				x2[i] = complex(ur*real(w2)-ui*imag(w2), ur*imag(w2)+ui*real(w2))
-				ur, ui = t1r-t3r, t1i-t3i
-				x3[i] = complex(ur*real(w3)-ui*imag(w3), ur*imag(w3)+ui*real(w3))
-			}
+		f.pass(x, l, st)
+	}
+	f.tail(x, l)
+}
+
+// fused reports whether segmentPower can run fused passes: log₂n even
+// and n ≥ 16 (all radix-4, the usual spectrum lengths).
+func (f *radix4) fused() bool {
+	return f.n >= 16 && f.last == 4
+}
+
+// segmentPower is the Welch segment's whole work for a fused length: the
+// first pass reads the samples seg[i]·win[i] (the float32 → float64
+// conversion and the window folded in), and the last radix-4 pass writes
+// |X|² by position into out (added when add is set) and, with cols,
+// sums it per column (cols[colOf[p]]) instead of storing X. It saves two
+// passes over the segment against convert, transform and square.
+func (f *radix4) segmentPower(work []complex128, seg []complex64, win []float64, out []float64, add bool, cols []float64, colOf []int32) {
+	n := f.n
+	work = work[:n]
+	seg = seg[:n]
+	win = win[:n]
+	m := n / 4
+	tw := f.tw[0][:3*m]
+	s0, s1, s2, s3 := seg[:m], seg[m : 2*m][:m], seg[2*m : 3*m][:m], seg[3*m:][:m]
+	v0, v1, v2, v3 := win[:m], win[m : 2*m][:m], win[2*m : 3*m][:m], win[3*m:][:m]
+	x0, x1, x2, x3 := work[:m], work[m : 2*m][:m], work[2*m : 3*m][:m], work[3*m:][:m]
+	for i := range x0 {
+		ar, ai := float64(real(s0[i]))*v0[i], float64(imag(s0[i]))*v0[i]
+		br, bi := float64(real(s1[i]))*v1[i], float64(imag(s1[i]))*v1[i]
+		cr, ci := float64(real(s2[i]))*v2[i], float64(imag(s2[i]))*v2[i]
+		dr, di := float64(real(s3[i]))*v3[i], float64(imag(s3[i]))*v3[i]
+		t0r, t0i := ar+cr, ai+ci
+		t1r, t1i := ar-cr, ai-ci
+		t2r, t2i := br+dr, bi+di
+		t3r, t3i := bi-di, dr-br // −j·(b − d)
+		w := tw[3*i : 3*i+3]
+		w1, w2, w3 := w[0], w[1], w[2]
+		x0[i] = complex(t0r+t2r, t0i+t2i)
+		ur, ui := t1r+t3r, t1i+t3i
+		x1[i] = complex(ur*real(w1)-ui*imag(w1), ur*imag(w1)+ui*real(w1))
+		ur, ui = t0r-t2r, t0i-t2i
+		x2[i] = complex(ur*real(w2)-ui*imag(w2), ur*imag(w2)+ui*real(w2))
+		ur, ui = t1r-t3r, t1i-t3i
+		x3[i] = complex(ur*real(w3)-ui*imag(w3), ur*imag(w3)+ui*real(w3))
+	}
+	l := m
+	for st := 1; l >= 16; st, l = st+1, l/4 {
+		f.pass(work, l, st)
+	}
+	// l == 4: the last pass, squared
+	out = out[:n]
+	if cols != nil {
+		colOf = colOf[:n]
+	}
+	for s := 0; s < n; s += 4 {
+		b := work[s : s+4]
+		a, bb, c, d := b[0], b[1], b[2], b[3]
+		t0r, t0i := real(a)+real(c), imag(a)+imag(c)
+		t1r, t1i := real(a)-real(c), imag(a)-imag(c)
+		t2r, t2i := real(bb)+real(d), imag(bb)+imag(d)
+		t3r, t3i := imag(bb)-imag(d), real(d)-real(bb)
+		y0r, y0i := t0r+t2r, t0i+t2i
+		y1r, y1i := t1r+t3r, t1i+t3i
+		y2r, y2i := t0r-t2r, t0i-t2i
+		y3r, y3i := t1r-t3r, t1i-t3i
+		p0 := y0r*y0r + y0i*y0i
+		p1 := y1r*y1r + y1i*y1i
+		p2 := y2r*y2r + y2i*y2i
+		p3 := y3r*y3r + y3i*y3i
+		o := out[s : s+4]
+		if add {
+			o[0] += p0
+			o[1] += p1
+			o[2] += p2
+			o[3] += p3
+		} else {
+			o[0], o[1], o[2], o[3] = p0, p1, p2, p3
+		}
+		if cols != nil {
+			k := colOf[s : s+4]
+			cols[k[0]] += p0
+			cols[k[1]] += p1
+			cols[k[2]] += p2
+			cols[k[3]] += p3
 		}
 	}
+}
+
+// pass is one radix-4 pass over the blocks of length l of x, with the
+// twiddles of pass st.
+func (f *radix4) pass(x []complex128, l, st int) {
+	n := len(x)
+	m := l / 4
+	tw := f.tw[st][:3*m]
+	for s := 0; s < n; s += l {
+		b := x[s : s+l]
+		x0 := b[:m]
+		x1 := b[m : 2*m][:len(x0)]
+		x2 := b[2*m : 3*m][:len(x0)]
+		x3 := b[3*m : 4*m][:len(x0)]
+		for i := range x0 {
+			a, bb, c, d := x0[i], x1[i], x2[i], x3[i]
+			t0r, t0i := real(a)+real(c), imag(a)+imag(c)
+			t1r, t1i := real(a)-real(c), imag(a)-imag(c)
+			t2r, t2i := real(bb)+real(d), imag(bb)+imag(d)
+			t3r, t3i := imag(bb)-imag(d), real(d)-real(bb) // −j·(b − d)
+			w := tw[3*i : 3*i+3]
+			w1, w2, w3 := w[0], w[1], w[2]
+			x0[i] = complex(t0r+t2r, t0i+t2i)
+			ur, ui := t1r+t3r, t1i+t3i
+			x1[i] = complex(ur*real(w1)-ui*imag(w1), ur*imag(w1)+ui*real(w1))
+			ur, ui = t0r-t2r, t0i-t2i
+			x2[i] = complex(ur*real(w2)-ui*imag(w2), ur*imag(w2)+ui*real(w2))
+			ur, ui = t1r-t3r, t1i-t3i
+			x3[i] = complex(ur*real(w3)-ui*imag(w3), ur*imag(w3)+ui*real(w3))
+		}
+	}
+}
+
+// tail finishes blocks of length l ≤ 8 left by the radix-4 passes.
+func (f *radix4) tail(x []complex128, l int) {
+	n := len(x)
 	switch l {
 	case 8: // a radix-4 pass of length 8 then radix-2 pairs
 		w1 := complex(math.Sqrt2/2, -math.Sqrt2/2)  // W_8

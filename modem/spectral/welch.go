@@ -382,6 +382,13 @@ func (w *worker) do(j job) {
 // when cols is not nil.
 func (w *worker) segment(seg []complex64, out, cols []float64, add bool) {
 	k := w.k
+	if cols != nil {
+		clear(cols)
+	}
+	if k.radix != nil && k.radix.fused() {
+		k.radix.segmentPower(w.work, seg, k.w, out, add, cols, k.colOf)
+		return
+	}
 	win, work := k.w, w.work[:len(k.w)]
 	seg = seg[:len(win)]
 	for i, v := range seg {
@@ -391,7 +398,6 @@ func (w *worker) segment(seg []complex64, out, cols []float64, add bool) {
 	out = out[:len(work)]
 	switch {
 	case cols != nil:
-		clear(cols)
 		colOf := k.colOf[:len(work)]
 		for p, c := range work {
 			re, im := real(c), imag(c)

@@ -184,7 +184,7 @@ func TestWorkersEqualSerial(t *testing.T) {
 	// bit for bit: each bin's sum takes the segments in stream order
 	// (exact equality expected), also across a Spectrum read mid-stream.
 	x := addNoise(lines(30011, 8000, line{f: 1234, amp: 0.5}, line{f: -2000, amp: 0.01}), 1e-2, 31)
-	for _, n := range []int{512, 384} { // radix-4 and gonum paths
+	for _, n := range []int{1024, 512, 384} { // fused radix-4, radix-4 and gonum paths
 		for _, hop := range []int{0, 100, 700} {
 			ref := NewWaterfall(n, 8000, 4, 64, Options{Hop: hop})
 			ref.Add(x)
