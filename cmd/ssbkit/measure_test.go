@@ -143,6 +143,46 @@ func TestMeasureJSONKeys(t *testing.T) {
 	}
 }
 
+func TestMeasureWideCommand(t *testing.T) {
+	// A two-tone USB transmission at +100 kHz in a 480 kHz capture, with a
+	// strong line 12 kHz above the carrier: measure narrows it to 48 kHz,
+	// reads the placed levels (IMD3 −35 dBc, 0.5 dB as in the 48 kHz
+	// test) and draws the plot around the carrier.
+	const (
+		rate  = 480000.0
+		c     = 100000.0
+		a     = 0.3
+		tolDB = 0.5
+	)
+	dir := t.TempDir()
+	in := writeCF32(t, dir, "wide.cf32", 1<<20, rate, 1e-9,
+		tone{c + 700, a}, tone{c + 1900, a},
+		tone{c - 500, dbAmp(a, -35)}, tone{c + 3100, dbAmp(a, -37)},
+		tone{c + 12000, 0.3})
+	code, out, errs := runCmd(t, "measure", in, "--rate", "480k", "--offset", "100k", "--json")
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var m map[string]any
+	if err := json.Unmarshal([]byte(out), &m); err != nil {
+		t.Fatalf("%v in %q", err, out)
+	}
+	if g, _ := m["imd3_dbc"].(float64); math.Abs(g-(-35)) > tolDB {
+		t.Errorf("imd3_dbc %g, want −35 ± %g", g, tolDB)
+	}
+	if g, _ := m["rate_hz"].(float64); g != rate {
+		t.Errorf("rate_hz %g, want the capture's %g", g, rate)
+	}
+	png := filepath.Join(dir, "w.png")
+	code, out, errs = runCmd(t, "measure", in, "--rate", "480k", "--offset", "100k", "--plot", png)
+	if code != exitOK || !strings.Contains(out, "measured at 48000 S/s") {
+		t.Fatalf("exit %d (%s): %s", code, errs, out)
+	}
+	if b, err := os.ReadFile(png); err != nil || !bytes.HasPrefix(b, []byte("\x89PNG")) {
+		t.Errorf("--plot output is not a PNG: %v", err)
+	}
+}
+
 func TestMeasureBadInputCommand(t *testing.T) {
 	dir := t.TempDir()
 	sig := writeCF32(t, dir, "s.cf32", 1<<15, 48000, 1e-8, tone{1000, 0.3})

@@ -298,7 +298,8 @@ func writeMeasurePNG(out io.Writer, name string, r *spectral.Result, width, heig
 			span = math.Max(span, math.Abs(t.OffsetHz)+200)
 		}
 	}
-	span = math.Min(span, s.Rate/2-math.Abs(c))
+	// within the spectrum, which is centred on the carrier after narrowing
+	span = math.Min(span, s.Rate/2-math.Abs(c-s.Centre))
 	p := plot.New()
 	p.Title.Text = fmt.Sprintf("%s — %s sideband, carrier at %+.1f Hz", name, r.Sideband, c)
 	p.X.Label.Text = "offset from carrier (Hz)"
