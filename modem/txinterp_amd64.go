@@ -19,6 +19,30 @@ func mixInterpRealAVX2(dst, win *complex64, taps *float32, n, k, groups, up int)
 //go:noescape
 func mixInterpCplxAVX2(dst, win *complex64, taps *float32, n, k, groups, up int)
 
+// levelAVX2 adds the squares of the parts of y[:n] lane by lane into sum
+// and keeps the largest |y|² per lane pair in peak; n is a multiple of 16.
+//
+//go:noescape
+func levelAVX2(y *complex64, n int, sum, peak *[8]float32)
+
+// levelKernel returns the float32 sum of |y|² over y and the peak of
+// |y|², starting from peak; see levelGo, the reference loop.
+func levelKernel(y []complex64, peak float32) (float32, float32) {
+	if !useMixInterpAVX2 {
+		return levelGo(y, peak)
+	}
+	n := len(y) &^ 15
+	var sum, pk [8]float32
+	for i := range pk {
+		pk[i] = peak
+	}
+	if n > 0 {
+		levelAVX2(&y[0], n, &sum, &pk)
+	}
+	s, p := levelGo(y[n:], max(pk[0], pk[2], pk[4], pk[6]))
+	return s + ((sum[0] + sum[1]) + (sum[2] + sum[3])) + ((sum[4] + sum[5]) + (sum[6] + sum[7])), p
+}
+
 // mixInterpKernel runs the interpolation kernel: see mixInterpGo, the reference
 // loop it must match.
 func mixInterpKernel(dst, win []complex64, taps []float32, n, k, groups, up int, cplx bool) {

@@ -135,3 +135,62 @@ ctap:
 cdone:
 	VZEROUPPER
 	RET
+
+// Level statistics (AVX2): squares of the I and Q parts summed per lane
+// (their total is Σ|y|²), and |y|² = I² + Q² (pairs added after a swap)
+// kept by maximum. The peak operands are ordered so that a NaN sample
+// leaves the peak unchanged, as the Go loop does.
+
+// func levelAVX2(y *complex64, n int, sum, peak *[8]float32)
+TEXT ·levelAVX2(SB), NOSPLIT, $0-32
+	MOVQ    y+0(FP), SI
+	MOVQ    n+8(FP), CX
+	MOVQ    sum+16(FP), DI
+	MOVQ    peak+24(FP), DX
+	VMOVUPS (DI), Y0
+	VXORPS  Y1, Y1, Y1
+	VXORPS  Y2, Y2, Y2
+	VXORPS  Y3, Y3, Y3
+	VMOVUPS (DX), Y4
+	VMOVUPS Y4, Y5
+	TESTQ   CX, CX
+	JLE     ldone
+
+lloop:
+	VMOVUPS   0(SI), Y8
+	VMOVUPS   32(SI), Y9
+	VMOVUPS   64(SI), Y10
+	VMOVUPS   96(SI), Y11
+	VMULPS    Y8, Y8, Y8
+	VMULPS    Y9, Y9, Y9
+	VMULPS    Y10, Y10, Y10
+	VMULPS    Y11, Y11, Y11
+	VADDPS    Y8, Y0, Y0
+	VADDPS    Y9, Y1, Y1
+	VADDPS    Y10, Y2, Y2
+	VADDPS    Y11, Y3, Y3
+	VPERMILPS $0xB1, Y8, Y12
+	VPERMILPS $0xB1, Y9, Y13
+	VPERMILPS $0xB1, Y10, Y14
+	VPERMILPS $0xB1, Y11, Y15
+	VADDPS    Y12, Y8, Y8
+	VADDPS    Y13, Y9, Y9
+	VADDPS    Y14, Y10, Y10
+	VADDPS    Y15, Y11, Y11
+	VMAXPS    Y4, Y8, Y4
+	VMAXPS    Y5, Y9, Y5
+	VMAXPS    Y4, Y10, Y4
+	VMAXPS    Y5, Y11, Y5
+	ADDQ      $128, SI
+	SUBQ      $16, CX
+	JNZ       lloop
+
+ldone:
+	VADDPS  Y1, Y0, Y0
+	VADDPS  Y3, Y2, Y2
+	VADDPS  Y2, Y0, Y0
+	VMAXPS  Y4, Y5, Y4
+	VMOVUPS Y0, (DI)
+	VMOVUPS Y4, (DX)
+	VZEROUPPER
+	RET

@@ -9,3 +9,7 @@ const useMixInterpAVX2 = false
 func mixInterpKernel(dst, win []complex64, taps []float32, n, k, groups, up int, cplx bool) {
 	mixInterpGo(dst, win, taps, n, k, groups, up, cplx)
 }
+
+// levelKernel returns the float32 sum of |y|² over y and the peak of
+// |y|², starting from peak: the reference loop levelGo.
+func levelKernel(y []complex64, peak float32) (float32, float32) { return levelGo(y, peak) }

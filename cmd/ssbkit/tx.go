@@ -45,63 +45,6 @@ Examples:
 // txBlock is the number of audio samples modulated at a time.
 const txBlock = 1024
 
-// levelMeter sums |y|² (for the average power) and keeps its peak (PEP).
-type levelMeter struct {
-	energy float64
-	peak   [4]float32
-}
-
-// add takes a block of samples. Four float32 partial sums and maxima
-// (no dependency between consecutive samples) run over at most
-// 1024 samples at a time and are then added in float64, so the relative
-// error of the energy stays near 1024·2⁻²⁴ (Higham, Accuracy and
-// Stability of Numerical Algorithms, 2nd ed., sec. 4.2; from memory).
-func (l *levelMeter) add(y []complex64) {
-	for len(y) > 0 {
-		c := y[:min(len(y), 1024)]
-		y = y[len(c):]
-		var s0, s1, s2, s3 float32
-		p0, p1, p2, p3 := l.peak[0], l.peak[1], l.peak[2], l.peak[3]
-		for len(c) >= 4 {
-			v := c[:4:4]
-			a := real(v[0])*real(v[0]) + imag(v[0])*imag(v[0])
-			b := real(v[1])*real(v[1]) + imag(v[1])*imag(v[1])
-			d := real(v[2])*real(v[2]) + imag(v[2])*imag(v[2])
-			e := real(v[3])*real(v[3]) + imag(v[3])*imag(v[3])
-			s0, s1, s2, s3 = s0+a, s1+b, s2+d, s3+e
-			// compare and branch: the builtin max is several times slower
-			// here (it orders NaN and ±0), and a new peak is rare
-			if a > p0 {
-				p0 = a
-			}
-			if b > p1 {
-				p1 = b
-			}
-			if d > p2 {
-				p2 = d
-			}
-			if e > p3 {
-				p3 = e
-			}
-			c = c[4:]
-		}
-		for _, v := range c {
-			a := real(v)*real(v) + imag(v)*imag(v)
-			s0 += a
-			if a > p0 {
-				p0 = a
-			}
-		}
-		l.peak = [4]float32{p0, p1, p2, p3}
-		l.energy += float64(s0) + float64(s1) + float64(s2) + float64(s3)
-	}
-}
-
-// pep returns the peak of |y|².
-func (l *levelMeter) pep() float64 {
-	return float64(max(l.peak[0], l.peak[1], l.peak[2], l.peak[3]))
-}
-
 // txReport is the summary printed when done (text on stderr, or JSON on
 // stdout with --json).
 type txReport struct {
@@ -434,7 +377,7 @@ func runTx(e *env, args []string) error {
 	}
 	var (
 		written int64
-		lv      levelMeter
+		lv      modem.LevelMeter
 		werr    error
 		wdone   = make(chan struct{})
 	)
@@ -467,7 +410,7 @@ func runTx(e *env, args []string) error {
 			// move the kept part to the front of the block
 			n := copy(y, y[d:end])
 			queued += int64(n)
-			lv.add(y[:n])
+			lv.Add(y[:n])
 			full <- y[:n]
 			return
 		}
@@ -508,9 +451,9 @@ func runTx(e *env, args []string) error {
 	rep := txReport{Output: *out, Mode: cfg.Mode, RateHz: cfg.OutRate, Samples: written,
 		DurationS: float64(written) / cfg.OutRate, GainDB: 20 * math.Log10(cfg.Gain),
 		InternalRateHz: m.InternalRate(), CarrierOffsetHz: cfg.Offset}
-	pep := lv.pep()
+	pep := lv.Peak()
 	rep.PEPdBFS = 10 * math.Log10(pep)
-	rep.AverageDBFS = 10 * math.Log10(lv.energy/math.Max(1, float64(written)))
+	rep.AverageDBFS = 10 * math.Log10(lv.Energy()/math.Max(1, float64(written)))
 	rep.PEPToAverageDB = rep.PEPdBFS - rep.AverageDBFS
 	if sp := m.Splitter(); sp != nil {
 		rep.SuppressionDB = math.Round(10*hilbert.Analyze(sp, lo, hi).SuppressionMinDB) / 10

@@ -189,39 +189,3 @@ func TestTxHelp(t *testing.T) {
 		}
 	}
 }
-
-// TestLevelMeter checks the level statistics of tx against a float64 sum
-// and maximum of |y|² over blocks of odd lengths (PEP and average power as
-// the design defines them). Tolerance: float32 partial sums of at most
-// 1024 terms, relative error ≤ 1024·2⁻²⁴ (Higham, Accuracy and Stability
-// of Numerical Algorithms, 2nd ed., sec. 4.2; from memory); the peak is
-// one float32 product, relative error ≤ 2·2⁻²⁴.
-func TestLevelMeter(t *testing.T) {
-	const sumTol, peakTol = 1024.0 / (1 << 24), 2.0 / (1 << 24)
-	y := make([]complex64, 10007)
-	for i := range y {
-		// a slow chirp with a single peak sample in the middle
-		a := 0.3 + 0.2*math.Sin(float64(i)*0.001)
-		if i == 5003 {
-			a = 0.97
-		}
-		y[i] = complex64(cmplx.Rect(a, float64(i*i)*1e-4))
-	}
-	var lv levelMeter
-	var sum, peak float64
-	for off, bs := 0, 1; off < len(y); off, bs = off+bs, bs*3+1 {
-		blk := y[off:min(off+bs, len(y))]
-		lv.add(blk)
-		for _, v := range blk {
-			p := float64(real(v))*float64(real(v)) + float64(imag(v))*float64(imag(v))
-			sum += p
-			peak = math.Max(peak, p)
-		}
-	}
-	if math.Abs(lv.energy-sum) > sumTol*sum {
-		t.Errorf("energy %.9g, want %.9g", lv.energy, sum)
-	}
-	if math.Abs(lv.pep()-peak) > peakTol*peak {
-		t.Errorf("PEP %.9g, want %.9g", lv.pep(), peak)
-	}
-}
