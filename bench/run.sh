@@ -2,12 +2,14 @@
 # ssbkit side by side with the numpy/scipy references in ../shared/bench
 # (see bench/README.md). Usage:
 #
-#   bench/run.sh [rx] [RUNS]
+#   bench/run.sh [rx] [kernels] [RUNS]
 #
-# Sections: setup (build, tools, test data), rx (decode). Each section
-# times ssbkit and the reference alternately on the same file, RUNS times
-# each (default 3), and prints input MS/s, the ratio and peak resident
-# memory (GNU time -v). The machine is shared: quote ratios from one run.
+# Sections: setup (build, tools, test data), rx (decode), kernels (the
+# same decode built with and without the assembly kernels). Each section
+# times its commands alternately on the same file, RUNS times each
+# (default 3), and prints input MS/s, the ratio, CPU time and peak
+# resident memory (GNU time). The machine is shared: quote ratios from
+# one run.
 set -euo pipefail
 
 here=$(cd "$(dirname "$0")" && pwd)
@@ -23,9 +25,9 @@ sections=()
 runs=3
 for a in "$@"; do
 	case $a in
-	rx) sections+=("$a") ;;
+	rx | kernels) sections+=("$a") ;;
 	[0-9]*) runs=$a ;;
-	*) echo "usage: $0 [rx] [RUNS]" >&2; exit 2 ;;
+	*) echo "usage: $0 [rx] [kernels] [RUNS]" >&2; exit 2 ;;
 	esac
 done
 [ ${#sections[@]} -gt 0 ] || sections=(rx)
@@ -52,23 +54,28 @@ insamples=$(( $(stat -c %s "$cap") / 2 ))
 cat "$cap" >/dev/null
 
 # timed NAME OUTFILE CMD... : runs CMD under GNU time, prints one line
-# "NAME  seconds  MS/s  peak-MB" and appends the seconds to OUTFILE.
+# "NAME  seconds  MS/s  CPU seconds  peak-MB" and appends "seconds kB
+# cpu-seconds" to OUTFILE.
 timed() {
 	local name=$1 out=$2
 	shift 2
-	/usr/bin/time -f '%e %M' -o "$work/time" "$@" >/dev/null 2>"$work/err" || {
+	/usr/bin/time -f '%e %M %U %S' -o "$work/time" "$@" >/dev/null 2>"$work/err" || {
 		cat "$work/err" >&2
 		return 1
 	}
-	read -r secs kb <"$work/time"
-	echo "$secs $kb" >>"$out"
-	awk -v n="$name" -v s="$secs" -v k="$kb" -v ns="$insamples" \
-		'BEGIN { printf "  %-26s %6.2f s  %7.1f MS/s  %6.1f MB peak\n", n, s, ns / s / 1e6, k / 1024 }'
+	read -r secs kb us ss <"$work/time"
+	local cpu
+	cpu=$(awk -v u="$us" -v s="$ss" 'BEGIN { printf "%.2f", u + s }')
+	echo "$secs $kb $cpu" >>"$out"
+	awk -v n="$name" -v s="$secs" -v k="$kb" -v c="$cpu" -v ns="$insamples" \
+		'BEGIN { printf "  %-30s %6.2f s  %7.1f MS/s  %6.2f s CPU  %6.1f MB peak\n", n, s, ns / s / 1e6, c, k / 1024 }'
 }
 
-# summary NAME FILE: best (lowest) time and largest peak of the runs.
+# summary FILE: best (lowest) wall time, largest peak and lowest CPU time
+# of the runs.
 best() { sort -n "$1" | head -1 | cut -d' ' -f1; }
 peak() { sort -k2 -n "$1" | tail -1 | cut -d' ' -f2; }
+bestcpu() { sort -k3 -n "$1" | head -1 | cut -d' ' -f3; }
 
 # ---------------------------------------------------------------- rx
 section_rx() {
@@ -96,9 +103,33 @@ section_rx() {
 		timed "ssbkit rx, 4 channels (run $i)" "$m" "$ssbkit" rx "$cap" --rate 2.4M --offset -300k --offset 120k --offset 500k --offset 700k --agc off -q -o "$work/m_{freq}.wav"
 		timed "ssbkit rx, 1 channel (run $i)" "$o" "$ssbkit" rx "$cap" --rate 2.4M --offset 500k --agc off -q -o "$work/c.wav"
 	done
-	awk -v a="$(best "$m")" -v b="$(best "$o")" 'BEGIN {
-		printf "  best: four channels %.2f s, one channel %.2f s: four in one pass cost %.2f single passes (goal < 2)\n", a, b, a/b }'
+	awk -v a="$(best "$m")" -v b="$(best "$o")" -v ca="$(bestcpu "$m")" -v cb="$(bestcpu "$o")" 'BEGIN {
+		printf "  best: four channels %.2f s, one channel %.2f s: four in one pass cost %.2f single passes (goal < 2)\n", a, b, a/b
+		printf "  CPU time (less sensitive to other load): four channels %.2f s, one channel %.2f s: %.2f single passes\n", ca, cb, ca/cb }'
 	$PY "$refdir/check_decode.py" "$work/m_-300000.wav@-300000" "$work/m_+120000.wav@120000" "$work/m_+500000.wav@500000" | sed 's/^/    /'
+}
+
+# ---------------------------------------------------------------- kernels
+section_kernels() {
+	echo
+	echo "== kernels: ssbkit rx with the AVX2/FMA kernels against the same build with -tags purego (the Go loops)"
+	local pure=$work/ssbkit-purego k1=$work/k_asm1 k4=$work/k_asm4 p1=$work/k_go1 p4=$work/k_go4
+	(cd "$root" && go build -tags purego -o "$pure" ./cmd/ssbkit)
+	: >"$k1"; : >"$k4"; : >"$p1"; : >"$p4"
+	local four=(--offset -300k --offset 120k --offset 500k --offset 700k)
+	for i in $(seq "$runs"); do
+		rm -f "$work"/k_*.wav
+		timed "kernels, 1 channel (run $i)" "$k1" "$ssbkit" rx "$cap" --rate 2.4M --offset 120k --agc off -q -o "$work/k_a.wav"
+		timed "purego, 1 channel (run $i)" "$p1" "$pure" rx "$cap" --rate 2.4M --offset 120k --agc off -q -o "$work/k_b.wav"
+		timed "kernels, 4 channels (run $i)" "$k4" "$ssbkit" rx "$cap" --rate 2.4M "${four[@]}" --agc off -q -o "$work/k_a_{freq}.wav"
+		timed "purego, 4 channels (run $i)" "$p4" "$pure" rx "$cap" --rate 2.4M "${four[@]}" --agc off -q -o "$work/k_b_{freq}.wav"
+	done
+	awk -v a1="$(best "$k1")" -v b1="$(best "$p1")" -v a4="$(best "$k4")" -v b4="$(best "$p4")" \
+		-v c1="$(bestcpu "$k1")" -v d1="$(bestcpu "$p1")" -v c4="$(bestcpu "$k4")" -v d4="$(bestcpu "$p4")" 'BEGIN {
+		printf "  best wall: 1 channel %.2f s (purego %.2f s), 4 channels %.2f s (purego %.2f s)\n", a1, b1, a4, b4
+		printf "  best CPU:  1 channel %.2f s (purego %.2f s), 4 channels %.2f s (purego %.2f s)\n", c1, d1, c4, d4
+		printf "  four in one pass cost %.2f single passes with the kernels, %.2f with -tags purego\n", a4/a1, b4/b1 }'
+	$PY "$refdir/check_decode.py" "$work/k_a.wav@120000" "$work/k_b.wav@120000" | sed 's/^/    /'
 }
 
 echo "input: $cap ($insamples samples); $(nproc) cores; load: $(cut -d' ' -f1-3 /proc/loadavg)"

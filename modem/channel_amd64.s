@@ -29,59 +29,72 @@ TEXT ·dotComplexAVX2(SB), NOSPLIT, $0-112
 	SHLQ $3, DX
 	MOVQ crd+40(FP), R8
 	MOVQ cid+48(FP), R9
-	MOVQ full+56(FP), R10
+	MOVQ full+56(FP), BX
 	MOVQ mask+64(FP), R11
 	MOVQ rem+72(FP), R12
 	TESTQ CX, CX
 	JZ   cdone
-	VMOVDQU (R11), Y7
+	VMOVDQU  (R11), Y7
 	VMOVSD   p_real+80(FP), X8
 	VMOVHPD  p_imag+88(FP), X8, X8
 	VMOVDDUP r_real+96(FP), X9
 	VMOVDDUP r_imag+104(FP), X10
+	SHLQ     $5, BX          // bytes of the full groups (window and taps alike)
+	MOVQ     BX, R13
+	ANDQ     $-128, R13      // bytes run four groups at a time
 
 couter:
 	VXORPS Y0, Y0, Y0
 	VXORPS Y1, Y1, Y1
 	VXORPS Y2, Y2, Y2
 	VXORPS Y3, Y3, Y3
-	MOVQ SI, AX
-	MOVQ R8, BX
-	MOVQ R9, R13
-	MOVQ R10, R11
-	CMPQ R11, $2
-	JLT  csingle
+	XORQ   AX, AX
+	TESTQ  R13, R13
+	JZ     ctwo
 
-cpairs:
-	VMOVUPS     (AX), Y4
-	VMOVUPS     32(AX), Y5
-	VFMADD231PS (BX), Y4, Y0
-	VFMADD231PS (R13), Y4, Y1
-	VFMADD231PS 32(BX), Y5, Y2
-	VFMADD231PS 32(R13), Y5, Y3
-	ADDQ        $64, AX
-	ADDQ        $64, BX
-	ADDQ        $64, R13
-	SUBQ        $2, R11
-	CMPQ        R11, $2
-	JGE         cpairs
+cfour:
+	VMOVUPS     (SI)(AX*1), Y4
+	VMOVUPS     32(SI)(AX*1), Y5
+	VFMADD231PS (R8)(AX*1), Y4, Y0
+	VFMADD231PS (R9)(AX*1), Y4, Y1
+	VFMADD231PS 32(R8)(AX*1), Y5, Y2
+	VFMADD231PS 32(R9)(AX*1), Y5, Y3
+	VMOVUPS     64(SI)(AX*1), Y4
+	VMOVUPS     96(SI)(AX*1), Y5
+	VFMADD231PS 64(R8)(AX*1), Y4, Y0
+	VFMADD231PS 64(R9)(AX*1), Y4, Y1
+	VFMADD231PS 96(R8)(AX*1), Y5, Y2
+	VFMADD231PS 96(R9)(AX*1), Y5, Y3
+	ADDQ        $128, AX
+	CMPQ        AX, R13
+	JLT         cfour
 
-csingle:
-	TESTQ       R11, R11
-	JZ          ctail
-	VMOVUPS     (AX), Y4
-	VFMADD231PS (BX), Y4, Y0
-	VFMADD231PS (R13), Y4, Y1
+ctwo:
+	LEAQ        64(AX), R11
+	CMPQ        R11, BX
+	JGT         cone
+	VMOVUPS     (SI)(AX*1), Y4
+	VMOVUPS     32(SI)(AX*1), Y5
+	VFMADD231PS (R8)(AX*1), Y4, Y0
+	VFMADD231PS (R9)(AX*1), Y4, Y1
+	VFMADD231PS 32(R8)(AX*1), Y5, Y2
+	VFMADD231PS 32(R9)(AX*1), Y5, Y3
+	MOVQ        R11, AX
+
+cone:
+	CMPQ        AX, BX
+	JGE         ctail
+	VMOVUPS     (SI)(AX*1), Y4
+	VFMADD231PS (R8)(AX*1), Y4, Y0
+	VFMADD231PS (R9)(AX*1), Y4, Y1
 	ADDQ        $32, AX
-	ADDQ        $32, BX
-	ADDQ        $32, R13
 
 ctail:
 	TESTQ       R12, R12
 	JZ          creduce
-	VMASKMOVPS  (AX), Y7, Y4
-	VFMADD231PS (BX), Y4, Y2
-	VFMADD231PS (R13), Y4, Y3
+	VMASKMOVPS  (SI)(AX*1), Y7, Y4
+	VFMADD231PS (R8)(AX*1), Y4, Y2
+	VFMADD231PS (R9)(AX*1), Y4, Y3
 
 creduce:
 	VADDPS       Y2, Y0, Y0

@@ -405,15 +405,24 @@ func (m *wavMono) Write(a []float32) error {
 	}
 	b := m.buf[:2*len(a)]
 	for i, v := range a {
-		x := math.Round(float64(v) * 32767)
-		if x > 32767 || x < -32768 || x != x {
+		// round(x) half away from zero, as math.Round but without its
+		// call: x, a float32 times 32767, is exact in float64, and so is
+		// x ± 0.5 wherever it matters, so truncating it rounds correctly
+		// (TestWAVMonoRounding compares with math.Round).
+		x := float64(v) * 32767
+		x += math.Copysign(0.5, x)
+		if !(x < 32768 && x > -32769) { // beyond full scale, or NaN
 			m.clipped++
-			if x != x {
+			switch {
+			case x != x:
 				x = 0
+			case x > 0:
+				x = 32767
+			default:
+				x = -32768
 			}
-			x = math.Max(-32768, math.Min(32767, x))
 		}
-		binary.LittleEndian.PutUint16(b[2*i:], uint16(int16(x)))
+		binary.LittleEndian.PutUint16(b[2*i:], uint16(int16(int32(x))))
 	}
 	if _, err := m.w.Write(b); err != nil {
 		m.err = err

@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"encoding/binary"
 	"math"
 	"math/cmplx"
 	"math/rand/v2"
@@ -225,5 +226,65 @@ func BenchmarkRawDecodeCU8(b *testing.B) {
 	b.ReportAllocs()
 	for b.Loop() {
 		dec(dst, src)
+	}
+}
+
+// TestWAVMonoRounding: wavMono quantises as clamp(round(x·32767)) with
+// math.Round (half away from zero) and counts the samples it clamps; the
+// expected codes are computed here with math.Round itself, on the ties
+// ±(k + 0.5)/32767, their float32 neighbours, full scale, NaN and seeded
+// random values.
+func TestWAVMonoRounding(t *testing.T) {
+	var in []float32
+	for _, k := range []float64{0, 1, 2, 1000, 32766, 32767} {
+		for _, s := range []float64{1, -1} {
+			v := float32(s * (k + 0.5) / 32767)
+			in = append(in, v, math.Nextafter32(v, 2), math.Nextafter32(v, -2))
+		}
+	}
+	in = append(in, 0, float32(math.Copysign(0, -1)), 1, -1, 1.0001, -1.0001, 2, -2,
+		float32(math.NaN()), float32(math.Inf(1)), float32(math.Inf(-1)), 1e-30, -1e-30)
+	r := rand.New(rand.NewPCG(3, 4))
+	for range 10000 {
+		in = append(in, float32(r.Float64()*2.2-1.1))
+	}
+	var want []int16
+	var clipped int64
+	for _, v := range in {
+		x := math.Round(float64(v) * 32767)
+		if x > 32767 || x < -32768 || x != x {
+			clipped++
+			if x != x {
+				x = 0
+			}
+			x = math.Max(-32768, math.Min(32767, x))
+		}
+		want = append(want, int16(x))
+	}
+	f := filepath.Join(t.TempDir(), "q.wav")
+	o, err := os.Create(f)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer o.Close()
+	m, err := newWAVMono(o, 48000)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := m.Write(in); err != nil {
+		t.Fatal(err)
+	}
+	if m.clipped != clipped {
+		t.Errorf("%d samples clamped, want %d", m.clipped, clipped)
+	}
+	b, err := os.ReadFile(f)
+	if err != nil {
+		t.Fatal(err)
+	}
+	b = b[44:]
+	for i, w := range want {
+		if got := int16(binary.LittleEndian.Uint16(b[2*i:])); got != w {
+			t.Errorf("%v: code %d, math.Round gives %d", in[i], got, w)
+		}
 	}
 }
