@@ -55,3 +55,25 @@ func ExampleNewModulator() {
 	// Output:
 	// internal rate 8000 Hz, magnitude at +11 kHz 0.5000
 }
+
+// Two equal tones of amplitude 0.5 have a PEP of 1 (0 dBFS) and an average
+// power of 0.5: the PEP-to-average ratio of the two-tone test, 3.01 dB
+// (common practice).
+func ExampleLevelMeter() {
+	const rate = 48000
+	a := modem.NewOscillator(1000, rate).Generate(make([]complex64, rate))
+	b := modem.NewOscillator(2000, rate).Generate(make([]complex64, rate))
+	var lv modem.LevelMeter
+	for i := 0; i < rate; i += 4800 { // blocks, as a stream arrives
+		blk := make([]complex64, 4800)
+		for k := range blk {
+			blk[k] = 0.5*a[i+k] + 0.5*b[i+k]
+		}
+		lv.Add(blk)
+	}
+	avg := lv.Energy() / float64(lv.Count())
+	fmt.Printf("PEP %.2f dBFS, average %.2f dBFS, ratio %.2f dB\n",
+		10*math.Log10(lv.Peak()), 10*math.Log10(avg), 10*math.Log10(lv.Peak()/avg))
+	// Output:
+	// PEP 0.00 dBFS, average -3.01 dBFS, ratio 3.01 dB
+}

@@ -248,7 +248,13 @@ func (f *front) reset() {
 //	phase splitter, conjugate for lsb; am: carrier + audio; dsb: audio]
 //	→ gain → complex Resampler to OutRate → mix to Offset.
 //
-// See the package documentation for the chain and its sources.
+// When the resampler's last stage is an integer interpolation (8 kHz →
+// 2.4 MHz is ×4 then ×75) and the CPU has AVX2 and FMA, the mix to Offset
+// rides in that stage's taps (complex taps h[l]·e^{jωl} and a premix of
+// its input at the low rate; see mixInterp), and the interpolation stages
+// run on a vector kernel; the result is the same signal within float32
+// rounding, with the carrier phase exactly that of the mixer. See the
+// package documentation for the chain and its sources.
 type Modulator struct {
 	fr      *front
 	cfg     TxConfig
