@@ -361,11 +361,15 @@ func detectChannels(e *env, in string, cf *captureFlags, quiet bool) ([]rxChanne
 type wavMono struct {
 	w       io.WriteSeeker
 	rate    int
-	buf     []byte
-	n       int64 // samples written
-	clipped int64 // samples beyond full scale, clamped
+	buf     []byte // quantised samples not yet written, up to wavFlush bytes
+	n       int64  // samples written
+	clipped int64  // samples beyond full scale, clamped
 	err     error
 }
+
+// wavFlush is the size of wavMono's writes: a few per second of audio
+// rather than one per decoded block (a system call each).
+const wavFlush = 1 << 16
 
 func newWAVMono(w io.WriteSeeker, rate int) (*wavMono, error) {
 	m := &wavMono{w: w, rate: rate}
@@ -395,15 +399,19 @@ func (m *wavMono) header(n int64) []byte {
 }
 
 // Write quantises a (full scale ±1) to 16 bits, clamping and counting
-// samples beyond full scale.
+// samples beyond full scale, and writes them once wavFlush bytes are
+// pending (Close writes the rest). An error is sticky.
 func (m *wavMono) Write(a []float32) error {
 	if m.err != nil {
 		return m.err
 	}
-	if cap(m.buf) < 2*len(a) {
-		m.buf = make([]byte, 2*len(a))
+	k := len(m.buf)
+	if cap(m.buf)-k < 2*len(a) {
+		nb := make([]byte, k, max(wavFlush, 2*(k+2*len(a))))
+		copy(nb, m.buf)
+		m.buf = nb
 	}
-	b := m.buf[:2*len(a)]
+	b := m.buf[k : k+2*len(a)]
 	for i, v := range a {
 		// round(x) half away from zero, as math.Round but without its
 		// call: x, a float32 times 32767, is exact in float64, and so is
@@ -424,18 +432,33 @@ func (m *wavMono) Write(a []float32) error {
 		}
 		binary.LittleEndian.PutUint16(b[2*i:], uint16(int16(int32(x))))
 	}
-	if _, err := m.w.Write(b); err != nil {
-		m.err = err
-		return err
-	}
+	m.buf = m.buf[:k+2*len(a)]
 	m.n += int64(len(a))
+	if len(m.buf) >= wavFlush {
+		return m.flush()
+	}
+	return nil
+}
+
+// flush writes the pending samples.
+func (m *wavMono) flush() error {
+	if m.err != nil {
+		return m.err
+	}
+	if len(m.buf) > 0 {
+		if _, err := m.w.Write(m.buf); err != nil {
+			m.err = err
+			return err
+		}
+		m.buf = m.buf[:0]
+	}
 	return nil
 }
 
 // Close writes the final sizes into the header.
 func (m *wavMono) Close() error {
-	if m.err != nil {
-		return m.err
+	if err := m.flush(); err != nil {
+		return err
 	}
 	if m.n*2 > math.MaxUint32-36 {
 		return errors.New("audio longer than a WAV file can hold (4 GiB)")

@@ -274,6 +274,9 @@ func TestWAVMonoRounding(t *testing.T) {
 	if err := m.Write(in); err != nil {
 		t.Fatal(err)
 	}
+	if err := m.Close(); err != nil {
+		t.Fatal(err)
+	}
 	if m.clipped != clipped {
 		t.Errorf("%d samples clamped, want %d", m.clipped, clipped)
 	}
