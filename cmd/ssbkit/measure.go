@@ -117,12 +117,14 @@ func runMeasure(e *env, args []string) error {
 	}
 	var stats iq.Stats
 	bar := newProgress(e, *quiet, "measure", meta.Samples)
-	buf := make([]complex64, 1<<16)
+	ra := newReadAhead(src, 1<<16, 4)
+	defer ra.stop()
 	for {
-		k, err := src.Read(buf)
-		m.Add(buf[:k])
-		stats.Add(buf[:k])
-		bar.Add(k)
+		x, err := ra.next()
+		m.Add(x)
+		stats.Add(x)
+		bar.Add(len(x))
+		ra.release(x)
 		if err == io.EOF {
 			break
 		}

@@ -111,13 +111,15 @@ func runSpectrum(e *env, args []string) error {
 	wf := spectral.NewWaterfall(n, meta.Rate, *rows, min(n, 1024), spectral.Options{Hop: hop, Workers: runtime.GOMAXPROCS(0)})
 	defer wf.Close()
 	bar := newProgress(e, *quiet, "spectrum", meta.Samples)
-	buf := make([]complex64, 1<<16)
+	ra := newReadAhead(src, 1<<16, 4)
+	defer ra.stop()
 	var total int64
 	for {
-		k, err := src.Read(buf)
-		wf.Add(buf[:k])
-		total += int64(k)
-		bar.Add(k)
+		x, err := ra.next()
+		wf.Add(x)
+		total += int64(len(x))
+		bar.Add(len(x))
+		ra.release(x)
 		if err == io.EOF {
 			break
 		}
@@ -163,6 +165,76 @@ func runSpectrum(e *env, args []string) error {
 		return writeSignalsList(e.stdout, meta, floor, *thr, signals)
 	}
 	return nil
+}
+
+// readAhead reads a capture on its own goroutine, a few blocks ahead of
+// the caller, so that reading and decoding the file overlap the work on
+// the blocks already read.
+type readAhead struct {
+	full   chan readBlock
+	free   chan []complex64
+	done   chan struct{}
+	exited chan struct{}
+}
+
+type readBlock struct {
+	x   []complex64
+	err error
+}
+
+// newReadAhead starts reading src in blocks of size samples, at most
+// depth blocks ahead.
+func newReadAhead(src interface {
+	Read([]complex64) (int, error)
+}, size, depth int) *readAhead {
+	r := &readAhead{
+		full: make(chan readBlock, depth), free: make(chan []complex64, depth),
+		done: make(chan struct{}), exited: make(chan struct{}),
+	}
+	for range depth {
+		r.free <- make([]complex64, size)
+	}
+	go func() {
+		defer close(r.exited)
+		defer close(r.full)
+		for {
+			var buf []complex64
+			select {
+			case buf = <-r.free:
+			case <-r.done:
+				return
+			}
+			k, err := src.Read(buf[:cap(buf)])
+			select {
+			case r.full <- readBlock{buf[:k], err}:
+			case <-r.done:
+				return
+			}
+			if err != nil {
+				return
+			}
+		}
+	}()
+	return r
+}
+
+// next returns the next block with the error the read ended on (io.EOF
+// at the end of the capture). The block is the caller's until release.
+func (r *readAhead) next() ([]complex64, error) {
+	b, ok := <-r.full
+	if !ok {
+		return nil, io.EOF
+	}
+	return b.x, b.err
+}
+
+// release hands a block from next back for reuse.
+func (r *readAhead) release(x []complex64) { r.free <- x[:cap(x)] }
+
+// stop ends the reading and waits for the reader to leave the source.
+func (r *readAhead) stop() {
+	close(r.done)
+	<-r.exited
 }
 
 // prevPow2 returns the largest power of two ≤ n (n ≥ 1).
