@@ -24,7 +24,10 @@ const stageChunk = 4096
 // The taps and arithmetic are float32 with the complex products written
 // out on real and imaginary parts (Go may evaluate complex64 products
 // through complex128). Hand-written: no library offers a streaming
-// frequency-translating decimator.
+// frequency-translating decimator. On amd64 with AVX2 and FMA the dot
+// products and the rotation run in an assembly kernel (see
+// channel_kernel.go); elsewhere, and with the build tag purego, in Go
+// loops that pair the symmetric taps.
 type ShiftDecimator struct {
 	cr, ci []float32 // folded taps in window order: c[i] = h[L−1−i]·e^{jω(L−1−i)}
 	// With symmetric taps, the pairs k, L−1−k share one coefficient:
@@ -236,7 +239,9 @@ func (s *ShiftDecimator) blockSym(dst, win []complex64, a, n, nb int64) []comple
 // Decimator is a polyphase low-pass decimator of complex samples with real
 // taps, y[m] = Σₖ h[k]·x[m·d + phase − k], computing only the kept
 // outputs (Crochiere & Rabiner, 1983, sec. 3.3). float32 arithmetic on
-// real and imaginary parts, written by hand like FIR.
+// real and imaginary parts, written by hand like FIR, in the AVX2 kernel
+// of channel_kernel.go where there is one. With d = 1 it is a plain FIR
+// filter (the receive chain's channel filter).
 type Decimator struct {
 	kt    *kernelTaps // rev for the assembly kernel (nil without it)
 	rev   []float32   // taps reversed
@@ -310,7 +315,9 @@ func (f *Decimator) Process(dst, src []complex64) []complex64 {
 
 // Interpolator raises the rate by an integer factor u with a polyphase
 // low-pass, y[n·u + p] = Σᵢ u·h[p + i·u]·x[n − i] (Crochiere & Rabiner,
-// 1983, sec. 3.3), h designed at the output rate with unity DC gain.
+// 1983, sec. 3.3), h designed at the output rate with unity DC gain. On
+// amd64 with AVX2 and FMA four phases run per vector instruction
+// (interpAVX2, channel_kernel.go).
 type Interpolator struct {
 	ph  [][]float32 // ph[p][i] = u·h[p + i·u], reversed in i
 	kt  *interpTaps // ph for the assembly kernel (nil without it)
