@@ -3,6 +3,7 @@ package main
 import (
 	"fmt"
 	"image/color"
+	"image/png"
 	"io"
 	"math"
 	"slices"
@@ -282,8 +283,10 @@ func writeSpectrumPNG(out io.Writer, p *spectrumPicture, width, height vg.Length
 		Max: vg.Point{X: dc.Max.X - 8, Y: wd.Max.Y},
 	}}
 	bar.Draw(right)
-	_, err = vgimg.PngCanvas{Canvas: img}.WriteTo(out)
-	return err
+	// fastest deflate: the waterfall's noise compresses poorly at any
+	// level; on a 60 s 2.4 MS/s capture the default level spent ~0.45 s
+	// for a file 22 % smaller (615 kB against 786 kB)
+	return (&png.Encoder{CompressionLevel: png.BestSpeed}).Encode(out, img.Image())
 }
 
 // writeMeasurePNG draws the spectrum around the carrier as line levels
