@@ -212,6 +212,38 @@ func TestMeasureWideCapture(t *testing.T) {
 	}
 }
 
+func TestMeasureNarrowedBlockwise(t *testing.T) {
+	// A narrowed measurement does not depend on how the stream is cut
+	// (common practice for streaming blocks; exact equality expected).
+	const rate = 960e3
+	g := &lineStream{rate: rate, ls: []line{{f: 50e3 + 700, amp: 0.3}, {f: 50e3 + 1900, amp: 0.3}},
+		sigma: 1e-4, rng: rand.New(rand.NewPCG(4, 5))}
+	x := make([]complex64, 1<<20)
+	g.fill(x)
+	var want *Result
+	for _, bs := range []int{len(x), 1000, 65537, 4095} {
+		m, err := NewMeasurer(rate, -1, MeasureOptions{CarrierHz: 50e3, Resolution: 20})
+		if err != nil {
+			t.Fatal(err)
+		}
+		for i := 0; i < len(x); i += bs {
+			m.Add(x[i:min(i+bs, len(x))])
+		}
+		r, err := m.Result()
+		if err != nil {
+			t.Fatal(err)
+		}
+		if want == nil {
+			want = r
+			continue
+		}
+		if r.WantedDBFS != want.WantedDBFS || r.PEPDBFS != want.PEPDBFS || r.IMD3DBc != want.IMD3DBc ||
+			r.CarrierDBc != want.CarrierDBc || r.OccupiedBandwidthHz != want.OccupiedBandwidthHz {
+			t.Errorf("block %d: %+v differs from the whole stream's %+v", bs, r, want)
+		}
+	}
+}
+
 func TestMeasureAtNoise(t *testing.T) {
 	// One clean tone in noise of −100 dBFS/Hz: the opposite sideband and
 	// the carrier hold only noise, so both figures are flagged as bounds.

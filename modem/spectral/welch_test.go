@@ -235,15 +235,21 @@ func TestAddDoesNotAllocate(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	mw, err := NewMeasurer(2.4e6, -1, MeasureOptions{CarrierHz: 100e3, Resolution: 50})
+	if err != nil || mw.MeasureRate() == 2.4e6 {
+		t.Fatalf("wide measurer: %v, measuring at %g Hz", err, mw.MeasureRate())
+	}
 	for i := 0; i < 40; i++ { // reach the steady state (waterfall rows)
 		w.Add(x)
 		m.Add(x)
+		mw.Add(x)
 	}
 	for name, f := range map[string]func(){
 		"Accumulator":           func() { a.Add(x) },
 		"Accumulator/2 workers": func() { a2.Add(x) },
 		"Waterfall":             func() { w.Add(x) },
 		"Measurer":              func() { m.Add(x) },
+		"Measurer/narrowed":     func() { mw.Add(x) },
 	} {
 		if got := testing.AllocsPerRun(20, f); got != 0 {
 			t.Errorf("%s.Add: %v allocations per call, want 0", name, got)
