@@ -25,6 +25,8 @@ TEXT ·mixInterpRealAVX2(SB), NOSPLIT, $0-56
 	SHLQ $3, R10
 	TESTQ CX, CX
 	JLE  rdone
+	CMPQ R8, $8
+	JEQ  r8pos
 
 rpos:
 	MOVQ DX, R11
@@ -70,6 +72,46 @@ rdone:
 	VZEROUPPER
 	RET
 
+	// k = 8: the eight broadcast window samples stay in Y8…Y15 for all
+	// groups of a position, so the group loop loads only taps.
+r8pos:
+	VBROADCASTSD 0(SI), Y8
+	VBROADCASTSD 8(SI), Y9
+	VBROADCASTSD 16(SI), Y10
+	VBROADCASTSD 24(SI), Y11
+	VBROADCASTSD 32(SI), Y12
+	VBROADCASTSD 40(SI), Y13
+	VBROADCASTSD 48(SI), Y14
+	VBROADCASTSD 56(SI), Y15
+	MOVQ         DX, R11
+	MOVQ         DI, R12
+	MOVQ         R9, R13
+
+r8grp:
+	VMULPS      0(R11), Y8, Y0
+	VMULPS      32(R11), Y9, Y1
+	VMULPS      64(R11), Y10, Y2
+	VMULPS      96(R11), Y11, Y3
+	VFMADD231PS 128(R11), Y12, Y0
+	VFMADD231PS 160(R11), Y13, Y1
+	VFMADD231PS 192(R11), Y14, Y2
+	VFMADD231PS 224(R11), Y15, Y3
+	VADDPS      Y1, Y0, Y0
+	VADDPS      Y3, Y2, Y2
+	VADDPS      Y2, Y0, Y0
+	VMOVUPS     Y0, (R12)
+	ADDQ        $256, R11
+	ADDQ        $32, R12
+	DECQ        R13
+	JNZ         r8grp
+
+	ADDQ $8, SI
+	ADDQ R10, DI
+	DECQ CX
+	JNZ  r8pos
+	VZEROUPPER
+	RET
+
 // For complex taps c = cr + j·ci the products w·cr and w·ci accumulate
 // separately; at the end (wr·ci, wi·ci) is swapped to (wi·ci, wr·ci) and
 // VADDSUBPS gives (wr·cr − wi·ci, wi·cr + wr·ci) = w·c.
@@ -86,6 +128,8 @@ TEXT ·mixInterpCplxAVX2(SB), NOSPLIT, $0-56
 	SHLQ $3, R10
 	TESTQ CX, CX
 	JLE  cdone
+	CMPQ R8, $8
+	JEQ  c8pos
 
 cpos:
 	MOVQ DX, R11
@@ -133,6 +177,54 @@ ctap:
 	JNZ  cpos
 
 cdone:
+	VZEROUPPER
+	RET
+
+	// k = 8, window in registers as above.
+c8pos:
+	VBROADCASTSD 0(SI), Y8
+	VBROADCASTSD 8(SI), Y9
+	VBROADCASTSD 16(SI), Y10
+	VBROADCASTSD 24(SI), Y11
+	VBROADCASTSD 32(SI), Y12
+	VBROADCASTSD 40(SI), Y13
+	VBROADCASTSD 48(SI), Y14
+	VBROADCASTSD 56(SI), Y15
+	MOVQ         DX, R11
+	MOVQ         DI, R12
+	MOVQ         R9, R13
+
+c8grp:
+	VMULPS      0(R11), Y8, Y0
+	VMULPS      32(R11), Y8, Y1
+	VMULPS      64(R11), Y9, Y2
+	VMULPS      96(R11), Y9, Y3
+	VFMADD231PS 128(R11), Y10, Y0
+	VFMADD231PS 160(R11), Y10, Y1
+	VFMADD231PS 192(R11), Y11, Y2
+	VFMADD231PS 224(R11), Y11, Y3
+	VFMADD231PS 256(R11), Y12, Y0
+	VFMADD231PS 288(R11), Y12, Y1
+	VFMADD231PS 320(R11), Y13, Y2
+	VFMADD231PS 352(R11), Y13, Y3
+	VFMADD231PS 384(R11), Y14, Y0
+	VFMADD231PS 416(R11), Y14, Y1
+	VFMADD231PS 448(R11), Y15, Y2
+	VFMADD231PS 480(R11), Y15, Y3
+	VADDPS      Y2, Y0, Y0
+	VADDPS      Y3, Y1, Y1
+	VPERMILPS   $0xB1, Y1, Y1
+	VADDSUBPS   Y1, Y0, Y0
+	VMOVUPS     Y0, (R12)
+	ADDQ        $512, R11
+	ADDQ        $32, R12
+	DECQ        R13
+	JNZ         c8grp
+
+	ADDQ $8, SI
+	ADDQ R10, DI
+	DECQ CX
+	JNZ  c8pos
 	VZEROUPPER
 	RET
 
