@@ -86,9 +86,13 @@ func (f *FIR) Process(dst, src []complex64) []complex64 {
 }
 
 // RealFIR is the FIR of real samples: y[n] = Σₖ h[k]·x[n−k] in float32.
+// Where the CPU has AVX2 and FMA it runs a vector kernel (eight outputs
+// per register; every output summed in the same order, so the result does
+// not depend on the block size); elsewhere the plain loop realFIRGo.
 type RealFIR struct {
 	rev []float32
 	buf []float32
+	pad []float32 // the vector kernel's last partial group
 	n   int
 }
 
@@ -100,6 +104,9 @@ func NewRealFIR(taps []float64) *RealFIR {
 	}
 	f := &RealFIR{n: len(taps), rev: reverse32(taps)}
 	f.buf = make([]float32, f.n-1, f.n-1+firChunk)
+	if useMixInterpAVX2 {
+		f.pad = make([]float32, firVecGroup+f.n-1)
+	}
 	return f
 }
 
@@ -125,23 +132,32 @@ func (f *RealFIR) Process(dst, src []float32) []float32 {
 		c := min(firChunk, len(src)-off)
 		buf := append(f.buf[:L-1], src[off:off+c]...)
 		out := dst[off : off+c]
-		for i := range out {
-			w := buf[i : i+L]
-			w = w[:len(h)]
-			var s0, s1, s2, s3 float32
-			k := 0
-			for ; k+3 < len(h); k += 4 {
-				s0 += h[k] * w[k]
-				s1 += h[k+1] * w[k+1]
-				s2 += h[k+2] * w[k+2]
-				s3 += h[k+3] * w[k+3]
-			}
-			for ; k < len(h); k++ {
-				s0 += h[k] * w[k]
-			}
-			out[i] = (s0 + s1) + (s2 + s3)
+		if f.pad != nil {
+			realFIRVec(out, buf, h, f.pad)
+		} else {
+			realFIRGo(out, buf, h)
 		}
 		copy(f.buf[:L-1], buf[c:c+L-1])
 	}
 	return dst
+}
+
+// realFIRGo is the reference loop of the real FIR: out[i] = Σₖ h[k]·w[i+k]
+// for the window w (oldest first) and the reversed taps h.
+func realFIRGo(out, w, h []float32) {
+	for i := range out {
+		w := w[i : i+len(h)]
+		var s0, s1, s2, s3 float32
+		k := 0
+		for ; k+3 < len(h); k += 4 {
+			s0 += h[k] * w[k]
+			s1 += h[k+1] * w[k+1]
+			s2 += h[k+2] * w[k+2]
+			s3 += h[k+3] * w[k+3]
+		}
+		for ; k < len(h); k++ {
+			s0 += h[k] * w[k]
+		}
+		out[i] = (s0 + s1) + (s2 + s3)
+	}
 }

@@ -142,3 +142,57 @@ func BenchmarkFIR(b *testing.B) {
 		})
 	}
 }
+
+// TestRealFIRKernel checks the real FIR as run (the vector kernel where the
+// CPU has one) against the reference loop realFIRGo, output by output,
+// within twice Higham's float32 inner-product bound γ_L·Σ|h||w| (see
+// txGammaK), for lengths that leave partial groups.
+func TestRealFIRKernel(t *testing.T) {
+	for _, l := range []int{1, 3, 31, 173} {
+		h := make([]float64, l)
+		for i, v := range testReal(l, uint64(l)) {
+			h[i] = float64(v) / float64(l)
+		}
+		for _, n := range []int{1, 31, 32, 33, 100, 2048} {
+			x := testReal(n+l-1, uint64(n))
+			f := NewRealFIR(h)
+			got := make([]float32, n)
+			want := make([]float32, n)
+			if f.pad != nil {
+				realFIRVec(got, x, f.rev, f.pad)
+			} else {
+				realFIRGo(got, x, f.rev)
+			}
+			realFIRGo(want, x, f.rev)
+			for i := range got {
+				var mag float64
+				for k, c := range f.rev {
+					mag += math.Abs(float64(c) * float64(x[i+k]))
+				}
+				if d := math.Abs(float64(got[i] - want[i])); d > 2*txGammaK(l)*mag {
+					t.Fatalf("%d taps, %d outputs: y[%d] differs by %.3g (bound %.3g)", l, n, i, d, 2*txGammaK(l)*mag)
+				}
+			}
+		}
+	}
+}
+
+func BenchmarkRealFIR(b *testing.B) {
+	for _, n := range []int{63, 173} {
+		h := make([]float64, n)
+		for i := range h {
+			h[i] = 1 / float64(n)
+		}
+		b.Run(itoa(n)+"taps", func(b *testing.B) {
+			f := NewRealFIR(h)
+			x := testReal(8192, 1)
+			dst := make([]float32, len(x))
+			b.SetBytes(int64(4 * len(x)))
+			b.ReportAllocs()
+			for b.Loop() {
+				f.Process(dst, x)
+			}
+			b.ReportMetric(float64(b.N*len(x))/b.Elapsed().Seconds()/1e6, "MS/s")
+		})
+	}
+}

@@ -43,6 +43,41 @@ func levelKernel(y []complex64, peak float32) (float32, float32) {
 	return s + ((sum[0] + sum[1]) + (sum[2] + sum[3])) + ((sum[4] + sum[5]) + (sum[6] + sum[7])), p
 }
 
+// firVecGroup is the number of outputs of one pass of the real FIR
+// kernel: four registers of eight.
+const firVecGroup = 32
+
+// firRealAVX2 computes out[i] = Σₖ h[k]·w[i+k] for i < n (a multiple of
+// 32), each output accumulated over k in order with FMA.
+//
+//go:noescape
+func firRealAVX2(out, w, h *float32, n, l int)
+
+// realFIRVec is realFIRGo on the vector kernel. The last partial group
+// runs on a zero-padded copy of its window (pad: 32 + len(h) − 1 floats),
+// with the same arithmetic per output as the others.
+func realFIRVec(out, w, h, pad []float32) {
+	n := len(out)
+	if n == 0 {
+		return
+	}
+	l := len(h)
+	if len(w) < n+l-1 || len(pad) < firVecGroup+l-1 {
+		panic("modem: FIR kernel arguments out of range")
+	}
+	full := n &^ (firVecGroup - 1)
+	if full > 0 {
+		firRealAVX2(&out[0], &w[0], &h[0], full, l)
+	}
+	if rest := n - full; rest > 0 {
+		m := copy(pad, w[full:n+l-1])
+		clear(pad[m:])
+		var tmp [firVecGroup]float32
+		firRealAVX2(&tmp[0], &pad[0], &h[0], firVecGroup, l)
+		copy(out[full:], tmp[:rest])
+	}
+}
+
 // mixInterpKernel runs the interpolation kernel: see mixInterpGo, the reference
 // loop it must match.
 func mixInterpKernel(dst, win []complex64, taps []float32, n, k, groups, up int, cplx bool) {

@@ -286,3 +286,51 @@ ldone:
 	VMOVUPS Y4, (DX)
 	VZEROUPPER
 	RET
+
+// Real FIR (AVX2, FMA): out[i] = Σₖ h[k]·w[i+k] for 32 outputs at a time,
+// four registers of eight consecutive outputs, h[k] broadcast. Every
+// output is accumulated over k in order, so any output's value does not
+// depend on the group it falls in.
+
+// func firRealAVX2(out, w, h *float32, n, l int)
+TEXT ·firRealAVX2(SB), NOSPLIT, $0-40
+	MOVQ out+0(FP), DI
+	MOVQ w+8(FP), SI
+	MOVQ h+16(FP), DX
+	MOVQ n+24(FP), CX
+	MOVQ l+32(FP), R8
+	TESTQ CX, CX
+	JLE  fdone
+
+fgrp:
+	VXORPS Y0, Y0, Y0
+	VXORPS Y1, Y1, Y1
+	VXORPS Y2, Y2, Y2
+	VXORPS Y3, Y3, Y3
+	MOVQ   SI, BX
+	MOVQ   DX, R11
+	MOVQ   R8, AX
+
+ftap:
+	VBROADCASTSS (R11), Y4
+	VFMADD231PS  0(BX), Y4, Y0
+	VFMADD231PS  32(BX), Y4, Y1
+	VFMADD231PS  64(BX), Y4, Y2
+	VFMADD231PS  96(BX), Y4, Y3
+	ADDQ         $4, BX
+	ADDQ         $4, R11
+	DECQ         AX
+	JNZ          ftap
+
+	VMOVUPS Y0, 0(DI)
+	VMOVUPS Y1, 32(DI)
+	VMOVUPS Y2, 64(DI)
+	VMOVUPS Y3, 96(DI)
+	ADDQ    $128, DI
+	ADDQ    $128, SI
+	SUBQ    $32, CX
+	JNZ     fgrp
+
+fdone:
+	VZEROUPPER
+	RET

@@ -13,3 +13,10 @@ func mixInterpKernel(dst, win []complex64, taps []float32, n, k, groups, up int,
 // levelKernel returns the float32 sum of |y|² over y and the peak of
 // |y|², starting from peak: the reference loop levelGo.
 func levelKernel(y []complex64, peak float32) (float32, float32) { return levelGo(y, peak) }
+
+// firVecGroup is unused without the vector kernel.
+const firVecGroup = 32
+
+// realFIRVec is never called without the vector kernel (RealFIR keeps no
+// pad); it is the reference loop.
+func realFIRVec(out, w, h, pad []float32) { realFIRGo(out, w, h) }
