@@ -3,7 +3,6 @@ package spectral
 import (
 	"math"
 
-	"gonum.org/v1/gonum/dsp/fourier"
 	"gonum.org/v1/gonum/dsp/window"
 )
 
@@ -14,14 +13,21 @@ import (
 // isolate the measured signal for its envelope peak; windowed-sinc design
 // is the textbook method (Oppenheim & Schafer, Discrete-Time Signal
 // Processing, 3rd ed., section 7.5).
+//
+// Both transforms are the package's radix-4 FFT, whose bins come out
+// digit-reversed: the filter's transform is kept in the same order, the
+// product is put back in frequency order, and a second forward transform
+// stands for the inverse, since DFT(Y)[i] = m·y[(m − i) mod m] — only
+// |y|² is needed, so the order of its outputs does not matter once each
+// position knows its time index.
 type bandIsolator struct {
 	l, m   int
-	fft    *fourier.CmplxFFT
-	h      []complex128 // FFT of the filter, scaled by 1/m
+	fft    *radix4
+	h      []complex128 // filter transform (digit-reversed), scaled by 1/m
+	tIdx   []int32      // time index of each position of the second transform
 	buf    []complex128
-	y      []complex128
+	y, nat []complex128
 	fill   int
-	seen   int64 // input samples so far
 	peak   float64
 	primed bool
 }
@@ -50,11 +56,18 @@ func newBandIsolator(rate, centre, half, transition float64) *bandIsolator {
 		s, c := math.Sincos(2 * math.Pi * centre / rate * float64(i))
 		taps[i] = complex(v*c, v*s)
 	}
-	b := &bandIsolator{l: l, m: m, fft: fourier.NewCmplxFFT(m), buf: make([]complex128, m), y: make([]complex128, m)}
-	b.h = b.fft.Coefficients(nil, taps)
+	b := &bandIsolator{
+		l: l, m: m, fft: newRadix4(m), buf: make([]complex128, m),
+		y: make([]complex128, m), nat: make([]complex128, m), tIdx: make([]int32, m),
+	}
+	b.fft.transform(taps)
+	b.h = taps
 	k := 1 / (dc * float64(m)) // unity gain in the passband
 	for i := range b.h {
 		b.h[i] *= complex(k, 0)
+	}
+	for p, bin := range b.fft.perm {
+		b.tIdx[p] = int32((m - int(bin)) % m)
 	}
 	b.fill = l - 1 // the first block starts with l−1 zeros of history
 	return b
@@ -70,35 +83,43 @@ func (b *bandIsolator) add(x []complex64) {
 		b.fill += k
 		x = x[k:]
 		if b.fill == b.m {
-			b.block()
+			b.block(b.m)
 		}
 	}
 }
 
-// block filters a full buffer: outputs l−1 … m−1 are valid convolution
-// results (overlap-save).
-func (b *bandIsolator) block() {
-	hist := b.buf[b.m-b.l+1:]
-	// keep the last l−1 inputs for the next block
-	y := b.fft.Coefficients(b.y, b.buf)
-	for i := range y {
-		y[i] *= b.h[i]
+// block filters the buffer and takes the peak over the valid outputs
+// below end: outputs l−1 … m−1 are valid convolution results
+// (overlap-save), and the stream's first l−1 outputs are skipped (filter
+// filling). It keeps the last l−1 inputs as the next block's history.
+func (b *bandIsolator) block(end int) {
+	y := b.y
+	copy(y, b.buf)
+	b.fft.transform(y)
+	h := b.h[:len(y)]
+	for i, v := range y {
+		y[i] = v * h[i]
 	}
-	b.fft.Sequence(y, y)
-	// outputs whose input window lies wholly in the stream: skip the
-	// first l−1 of the stream (filter filling)
+	nat := b.nat[:len(y)]
+	for p, bin := range b.fft.perm {
+		nat[bin] = y[p]
+	}
+	b.fft.transform(nat)
 	start := b.l - 1
 	if !b.primed {
 		start += b.l - 1
 		b.primed = true
 	}
-	for i := start; i < b.m; i++ {
-		re, im := real(y[i]), imag(y[i])
-		if p := re*re + im*im; p > b.peak {
-			b.peak = p
+	tIdx := b.tIdx[:len(nat)]
+	for p, v := range nat {
+		if t := int(tIdx[p]); t >= start && t < end {
+			re, im := real(v), imag(v)
+			if q := re*re + im*im; q > b.peak {
+				b.peak = q
+			}
 		}
 	}
-	copy(b.buf, hist)
+	copy(b.buf, b.buf[b.m-b.l+1:])
 	b.fill = b.l - 1
 }
 
@@ -108,23 +129,6 @@ func (b *bandIsolator) flush() {
 	if b.fill <= b.l-1 {
 		return
 	}
-	valid := b.fill
 	clear(b.buf[b.fill:])
-	y := b.fft.Coefficients(b.y, b.buf)
-	for i := range y {
-		y[i] *= b.h[i]
-	}
-	b.fft.Sequence(y, y)
-	start := b.l - 1
-	if !b.primed {
-		start += b.l - 1
-		b.primed = true
-	}
-	for i := start; i < valid; i++ {
-		re, im := real(y[i]), imag(y[i])
-		if p := re*re + im*im; p > b.peak {
-			b.peak = p
-		}
-	}
-	b.fill = b.l - 1
+	b.block(b.fill)
 }
