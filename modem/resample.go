@@ -368,6 +368,14 @@ func (s *rstage) process(dst, src []float32) []float32 {
 	if need := ((c-j)*up - p + down - 1) / down; j < c && n+need > len(d) {
 		panic("modem: resampler dst too short")
 	}
+	if up == 1 && useMixInterpAVX2 && j < c {
+		// Decimation: every output is one dot product of the k inputs
+		// from j on; the vector kernel does them all.
+		m := (c - j + down - 1) / down
+		decimRealVec(d[n:n+m], buf[j:], s.ph[:k], down)
+		n += m
+		j += m * down
+	}
 	for j < c {
 		w := buf[j : j+k]
 		for p < up {

@@ -131,7 +131,7 @@ func TestResamplerBlocks(t *testing.T) {
 // TestRealResampler checks the real version: a cosine keeps its
 // frequency, amplitude and the reported delay; block-wise = whole.
 func TestRealResampler(t *testing.T) {
-	for _, c := range []struct{ in, out, f float64 }{{44100, 8000, 1000}, {8000, 48000, 2500}, {22050, 12000, 3000}} {
+	for _, c := range []struct{ in, out, f float64 }{{44100, 8000, 1000}, {8000, 48000, 2500}, {22050, 12000, 3000}, {48000, 8000, 2000}} {
 		r, err := NewRealResampler(c.in, c.out, 90)
 		if err != nil {
 			t.Fatal(err)
@@ -214,4 +214,45 @@ func BenchmarkResampler(b *testing.B) {
 			b.ReportMetric(float64(outs)/b.Elapsed().Seconds()/1e6, "MS/s_out")
 		})
 	}
+}
+
+// TestDecimKernel checks the decimating dot products of a real stage (the
+// vector kernel where the CPU has one) against float64 sums, within
+// Higham's float32 inner-product bound γ_k·Σ|h||w| (see txGammaK) plus
+// the float32 rounding of the result.
+func TestDecimKernel(t *testing.T) {
+	if !useMixInterpAVX2 {
+		t.Skip("no vector kernel on this machine or build")
+	}
+	for _, k := range []int{4, 8, 12, 32, 40} {
+		for _, step := range []int{1, 2, 3, 7} {
+			h := testReal(k, uint64(k))
+			const n = 50
+			w := testReal((n-1)*step+k, uint64(step))
+			out := make([]float32, n)
+			decimRealVec(out, w, h, step)
+			for i, got := range out {
+				var want, mag float64
+				for t, c := range h {
+					want += float64(c) * float64(w[i*step+t])
+					mag += math.Abs(float64(c) * float64(w[i*step+t]))
+				}
+				if d := math.Abs(float64(got) - want); d > txGammaK(k)*mag+math.Ldexp(math.Abs(want), -24) {
+					t.Fatalf("k %d step %d: out[%d] = %v, want %v", k, step, i, got, want)
+				}
+			}
+		}
+	}
+}
+
+func BenchmarkRealResampler(b *testing.B) {
+	r, _ := NewRealResamplerSpec(ResamplerSpec{InRate: 48000, OutRate: 8000, Pass: 2700, AttenDB: 90})
+	x := testReal(8192, 1)
+	dst := make([]float32, 0, r.MaxOut(len(x)))
+	b.SetBytes(int64(4 * len(x)))
+	b.ReportAllocs()
+	for b.Loop() {
+		r.Process(dst, x)
+	}
+	b.ReportMetric(float64(b.N*len(x))/b.Elapsed().Seconds()/1e6, "MS/s_in")
 }

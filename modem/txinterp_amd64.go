@@ -78,6 +78,26 @@ func realFIRVec(out, w, h, pad []float32) {
 	}
 }
 
+// dotStepAVX2 computes out[i] = Σₜ h[t]·w[i·step + t], t < k, for i < n;
+// k is a positive multiple of 4.
+//
+//go:noescape
+func dotStepAVX2(out, w, h *float32, n, k, step int)
+
+// decimRealVec computes out[i] = Σₜ h[t]·w[i·step + t] for every i of out:
+// a real decimating stage's outputs (h the one phase, oldest input first).
+// Each output is summed the same way wherever it falls.
+func decimRealVec(out, w, h []float32, step int) {
+	n, k := len(out), len(h)
+	if n == 0 {
+		return
+	}
+	if k == 0 || k%4 != 0 || step < 1 || len(w) < (n-1)*step+k {
+		panic("modem: decimation kernel arguments out of range")
+	}
+	dotStepAVX2(&out[0], &w[0], &h[0], n, k, step)
+}
+
 // mixInterpKernel runs the interpolation kernel: see mixInterpGo, the reference
 // loop it must match.
 func mixInterpKernel(dst, win []complex64, taps []float32, n, k, groups, up int, cplx bool) {

@@ -334,3 +334,62 @@ ftap:
 fdone:
 	VZEROUPPER
 	RET
+
+// Decimating dot products (AVX2, FMA): out[i] = Σₜ h[t]·w[i·step + t].
+// Eight taps per FMA into Y0, a last four into X2 (a VEX XMM operation
+// would clear the upper half of Y0), then a horizontal sum.
+
+// func dotStepAVX2(out, w, h *float32, n, k, step int)
+TEXT ·dotStepAVX2(SB), NOSPLIT, $0-48
+	MOVQ out+0(FP), DI
+	MOVQ w+8(FP), SI
+	MOVQ h+16(FP), DX
+	MOVQ n+24(FP), CX
+	MOVQ k+32(FP), R8
+	MOVQ step+40(FP), R10
+	SHLQ $2, R10
+	MOVQ R8, R9
+	SHRQ $3, R9            // groups of eight taps
+	ANDQ $4, R8            // 4 when a group of four is left
+	TESTQ CX, CX
+	JLE  ddone
+
+dout:
+	VXORPS Y0, Y0, Y0
+	VXORPS Y1, Y1, Y1
+	VXORPS X2, X2, X2
+	MOVQ   SI, BX
+	MOVQ   DX, R11
+	MOVQ   R9, AX
+	TESTQ  AX, AX
+	JEQ    dtail
+
+d8:
+	VMOVUPS     (BX), Y3
+	VFMADD231PS (R11), Y3, Y0
+	ADDQ        $32, BX
+	ADDQ        $32, R11
+	DECQ        AX
+	JNZ         d8
+
+dtail:
+	TESTQ       R8, R8
+	JEQ         dsum
+	VMOVUPS     (BX), X3
+	VFMADD231PS (R11), X3, X2
+
+dsum:
+	VEXTRACTF128 $1, Y0, X1
+	VADDPS       X1, X0, X0
+	VADDPS       X2, X0, X0
+	VHADDPS      X0, X0, X0
+	VHADDPS      X0, X0, X0
+	VMOVSS       X0, (DI)
+	ADDQ         $4, DI
+	ADDQ         R10, SI
+	DECQ         CX
+	JNZ          dout
+
+ddone:
+	VZEROUPPER
+	RET

@@ -20,3 +20,8 @@ const firVecGroup = 32
 // realFIRVec is never called without the vector kernel (RealFIR keeps no
 // pad); it is the reference loop.
 func realFIRVec(out, w, h, pad []float32) { realFIRGo(out, w, h) }
+
+// decimRealVec is never called without the vector kernel.
+func decimRealVec(out, w, h []float32, step int) {
+	panic("modem: no decimation kernel on this platform")
+}
