@@ -189,3 +189,45 @@ func TestTxHelp(t *testing.T) {
 		}
 	}
 }
+
+// failWriter fails every write after the first n bytes.
+type failWriter struct{ n int }
+
+func (f *failWriter) Write(p []byte) (int, error) {
+	if len(p) > f.n {
+		return 0, os.ErrClosed
+	}
+	f.n -= len(p)
+	return len(p), nil
+}
+
+// TestFileSink checks that the asynchronous sink writes every byte in
+// order whatever the sizes of the writes, and that a write error reaches
+// the caller (a later Write or Close).
+func TestFileSink(t *testing.T) {
+	var want, got strings.Builder
+	s := newFileSink(&got)
+	for i, size := 0, 1; i < 300; i, size = i+1, (size*7+3)%(3*fileSinkBuf) {
+		p := make([]byte, size)
+		for k := range p {
+			p[k] = byte(i + k)
+		}
+		want.Write(p)
+		if n, err := s.Write(p); n != size || err != nil {
+			t.Fatalf("write %d: %d, %v", i, n, err)
+		}
+	}
+	if err := s.Close(); err != nil || got.String() != want.String() {
+		t.Fatalf("close: %v; %d bytes written, want %d, equal %v", err, got.Len(), want.Len(), got.String() == want.String())
+	}
+	if err := s.Close(); err != nil {
+		t.Errorf("second close: %v", err)
+	}
+
+	s = newFileSink(&failWriter{n: fileSinkBuf})
+	p := make([]byte, 5*fileSinkBuf)
+	_, err := s.Write(p)
+	if cerr := s.Close(); err == nil && cerr == nil {
+		t.Errorf("no error from a failing writer")
+	}
+}
