@@ -90,7 +90,7 @@ func runConvert(e *env, args []string) error {
 			return fmt.Errorf("%s: no usable I/Q imbalance estimate (silent or real-valued signal)", in)
 		}
 		corr = iq.NewCorrector(st.Mean(), im)
-		fmt.Fprintf(e.stderr, "ssbkit: convert: correcting DC (%+.5f, %+.5f), gain %+.3f dB, phase %+.3f°, image rejection was %.1f dB\n",
+		fmt.Fprintf(e.stderr, "convert: correcting DC (%+.5f, %+.5f), gain %+.3f dB, phase %+.3f°, image rejection was %.1f dB\n",
 			rep.DCOffset[0], rep.DCOffset[1], im.GainDB, im.PhaseDeg, im.ImageRejectionDB)
 	}
 

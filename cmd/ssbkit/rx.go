@@ -242,7 +242,7 @@ func runRx(e *env, args []string) error {
 	if !*quiet {
 		for i, c := range rcv.Channels() {
 			cfg := c.Config()
-			fmt.Fprintf(e.stderr, "ssbkit: rx: %s: %s %s at %s Hz, %d audio samples", targets[i], cfg.Mode, bandText(cfg), chans[i].label, writers[i].n)
+			fmt.Fprintf(e.stderr, "rx: %s: %s %s at %s Hz, %d audio samples", targets[i], cfg.Mode, bandText(cfg), chans[i].label, writers[i].n)
 			if writers[i].clipped > 0 {
 				fmt.Fprintf(e.stderr, ", %d samples clipped (lower --gain or use --agc)", writers[i].clipped)
 			}
@@ -348,7 +348,7 @@ func detectChannels(e *env, in string, cf *captureFlags, quiet bool) ([]rxChanne
 		}
 		out = append(out, rxChannel{offset: math.Round(s.OffsetHz), cfg: modem.RxConfig{Mode: m}})
 		if !quiet {
-			fmt.Fprintf(e.stderr, "ssbkit: rx: found %s at %+.0f Hz (SNR %.1f dB)\n", s.Kind, s.OffsetHz, s.SNRdB)
+			fmt.Fprintf(e.stderr, "rx: found %s at %+.0f Hz (SNR %.1f dB)\n", s.Kind, s.OffsetHz, s.SNRdB)
 		}
 	}
 	return out, nil
