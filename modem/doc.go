@@ -84,7 +84,10 @@
 // PEP (R3E, H3E) is c = k·E/(1 − k) with k = 10^(C/20) and E the peak of
 // |z|, which makes c/(E + c) = k. The complex baseband is resampled from fi
 // to the output rate keeping |f| ≤ High with 90 dB of image rejection, and
-// mixed to the offset. Survey measures P and E in a first pass (8×
+// mixed to the offset. Where the last stage is an integer interpolation and
+// the CPU has AVX2/FMA, the mixer is folded into that stage: its taps become
+// h[l]·e^{jωl} and its input is pre-mixed at the lower rate with step U·ω,
+// which gives the same carrier phase at every output as mixing afterwards. Survey measures P and E in a first pass (8×
 // interpolated so that peaks between samples count), for the depth, the
 // carrier and peak normalisation.
 //
@@ -92,4 +95,27 @@
 // drops the first round(Delay) samples to align I/Q and audio sets the
 // carrier phase with SetCarrierPhase so that it is 0 at the first kept
 // sample. Every stage streams, so memory is bounded by the block size.
+//
+// # Receive chain
+//
+// Channel tunes one station out of a capture: a first stage decimates with
+// the tuning mixer folded into complex taps (ShiftDecimator; a comb-shaped
+// low-pass whose nulls fall on the aliases that would land in the channel),
+// further Kaiser decimators planned by PlanChannel keep every alias into the
+// channel at least 80 dB down, an integer interpolator or the Resampler
+// reaches the audio rate, and the channel filter (a Kaiser low-pass on the
+// channel shifted so the audio band sits on 0 Hz, which makes it a complex
+// band-pass) selects one sideband. Demodulators: SSBDemod (product
+// detection: the real part), AMDemod (envelope, mean removed), SAMDemod
+// (a second-order carrier-tracking loop that reports lock), then AGC.
+// Receiver reads a capture once and runs several channels concurrently.
+// Narrower reuses the same stages to bring one frequency down to a narrow
+// rate for analysis (package spectral's measurement).
+//
+// # Kernels
+//
+// The hot loops of both chains have AVX2/FMA kernels in Go assembly, built
+// with "amd64 && !purego" and chosen at run time by CPU detection; each has
+// a plain Go twin, the reference loop, that tests compare against within a
+// named rounding bound. Build with -tags purego to run the twins alone.
 package modem
