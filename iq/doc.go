@@ -12,7 +12,12 @@
 //	cf32_le  x = v                      v = x
 //
 // Rounding is half away from zero. Writers never write NaN or ±Inf: such
-// components are written as 0 and counted.
+// components are written as 0 and counted. On a little-endian machine the
+// memory of a []complex64 already is cf32_le, so that encoding is a scan
+// for non-finite values (exponent field all ones, IEEE Std 754-2019,
+// 3.4) and a copy, or no copy at all when a writer passes a clean piece
+// on; only a piece that holds such a value is encoded component by
+// component.
 //
 // # Containers
 //

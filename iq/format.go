@@ -332,21 +332,7 @@ func encodeComplex(d Datatype, dst []byte, src []complex64) (nonfinite int) {
 			nonfinite += c1 + c2
 		}
 	case CF32:
-		dst = dst[: 8*n : 8*n]
-		for i, v := range src {
-			a, b := real(v), imag(v)
-			if a-a != 0 {
-				a = 0
-				nonfinite++
-			}
-			if b-b != 0 {
-				b = 0
-				nonfinite++
-			}
-			s := dst[8*i : 8*i+8 : 8*i+8]
-			binary.LittleEndian.PutUint32(s[0:4], math.Float32bits(a))
-			binary.LittleEndian.PutUint32(s[4:8], math.Float32bits(b))
-		}
+		return encodeCF32(dst, src)
 	default:
 		panic("iq: encodeComplex of a real or unknown datatype")
 	}

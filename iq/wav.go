@@ -162,13 +162,12 @@ func skip(r io.Reader, n int64) error {
 type wavWriter struct {
 	w      io.WriteSeeker
 	dt     Datatype
-	buf    []byte
+	enc    encoder
 	start  int64 // offset of the RIFF header
 	hdrLen int64
 	data   int64 // bytes of sample data written
 	err    error
 	closed bool
-	nonfin int64
 }
 
 // maxWAVData is the largest data chunk a RIFF file can describe.
@@ -185,7 +184,7 @@ func newWAVWriter(w io.WriteSeeker, dt Datatype, rate float64) (*wavWriter, erro
 	if err != nil {
 		return nil, err
 	}
-	ww := &wavWriter{w: w, dt: dt, start: start}
+	ww := &wavWriter{w: w, dt: dt, enc: encoder{dt: dt}, start: start}
 	hdr := ww.header(uint32(rate), 0)
 	ww.hdrLen = int64(len(hdr))
 	if _, err := w.Write(hdr); err != nil {
@@ -240,23 +239,12 @@ func (ww *wavWriter) Write(src []complex64) (int, error) {
 		ww.err = errors.New("WAV files end at 4 GiB: write SigMF or raw for longer captures")
 		return 0, ww.err
 	}
-	n := 0
-	for n < len(src) {
-		k := min(len(src)-n, writeChunk)
-		if cap(ww.buf) < k*ss {
-			ww.buf = make([]byte, writeChunk*ss)
-		}
-		b := ww.buf[:k*ss]
-		ww.nonfin += int64(encodeComplex(ww.dt, b, src[n:n+k]))
-		m, err := ww.w.Write(b)
-		ww.data += int64(m)
-		if err != nil {
-			ww.err = err
-			return n + m/ss, err
-		}
-		n += k
+	nb, err := ww.enc.write(ww.w, src)
+	ww.data += nb
+	if err != nil {
+		ww.err = err
 	}
-	return n, nil
+	return int(nb / int64(ss)), err
 }
 
 // Close writes the final sizes into the header and leaves the underlying
@@ -306,4 +294,4 @@ func (ww *wavWriter) Close() error {
 }
 
 // NonFinite returns the number of NaN or ±Inf components written as 0.
-func (ww *wavWriter) NonFinite() int64 { return ww.nonfin }
+func (ww *wavWriter) NonFinite() int64 { return ww.enc.nonfin }

@@ -35,12 +35,9 @@ func NewWriter(w io.WriteSeeker, container string, dt Datatype, rate float64) (W
 
 // RawWriter writes interleaved I/Q samples with no header.
 type RawWriter struct {
-	w      io.Writer
-	dt     Datatype
-	buf    []byte
-	err    error
-	n      int64
-	nonfin int64
+	w   io.Writer
+	enc encoder
+	err error
 }
 
 var (
@@ -54,7 +51,7 @@ func NewRawWriter(w io.Writer, dt Datatype) (*RawWriter, error) {
 	if !dt.Valid() || dt.IsReal() {
 		return nil, &UnsupportedError{What: "raw output datatype " + quote(string(dt)) + " (want cu8, ci8, ci16_le or cf32_le)"}
 	}
-	return &RawWriter{w: w, dt: dt}, nil
+	return &RawWriter{w: w, enc: encoder{dt: dt}}, nil
 }
 
 // Write encodes and writes src. It does not allocate after the first call.
@@ -62,24 +59,11 @@ func (rw *RawWriter) Write(src []complex64) (int, error) {
 	if rw.err != nil {
 		return 0, rw.err
 	}
-	ss := rw.dt.SampleSize()
-	n := 0
-	for n < len(src) {
-		k := min(len(src)-n, writeChunk)
-		if cap(rw.buf) < k*ss {
-			rw.buf = make([]byte, writeChunk*ss)
-		}
-		b := rw.buf[:k*ss]
-		rw.nonfin += int64(encodeComplex(rw.dt, b, src[n:n+k]))
-		m, err := rw.w.Write(b)
-		rw.n += int64(m / ss)
-		if err != nil {
-			rw.err = err
-			return n + m/ss, err
-		}
-		n += k
+	nb, err := rw.enc.write(rw.w, src)
+	if err != nil {
+		rw.err = err
 	}
-	return n, nil
+	return int(nb / int64(rw.enc.dt.SampleSize())), err
 }
 
 // Close returns the first write error, if any. It does not close the
@@ -93,4 +77,45 @@ func (rw *RawWriter) Close() error {
 }
 
 // NonFinite returns the number of NaN or ±Inf components written as 0.
-func (rw *RawWriter) NonFinite() int64 { return rw.nonfin }
+func (rw *RawWriter) NonFinite() int64 { return rw.enc.nonfin }
+
+// encoder encodes samples of one datatype for a writer (RawWriter and
+// the WAV writer share it) and counts the non-finite components.
+type encoder struct {
+	dt     Datatype
+	buf    []byte // writeChunk samples, allocated on first use
+	nonfin int64
+}
+
+// write encodes src in pieces of at most writeChunk samples and writes
+// each piece to w. It returns the number of bytes written (a partial
+// piece on error) and the first write error.
+//
+// For cf32_le on a little-endian machine a piece with no NaN or ±Inf is
+// written straight from the memory of src (see encodeCF32): io.Writer
+// implementations may neither modify nor retain p, so this saves the
+// copy through buf without changing what is written.
+func (e *encoder) write(w io.Writer, src []complex64) (int64, error) {
+	ss := e.dt.SampleSize()
+	var written int64
+	for len(src) > 0 {
+		k := min(len(src), writeChunk)
+		var b []byte
+		if e.dt == CF32 && nativeLE && finiteCF32(cf32View(src[:k])) {
+			b = cf32View(src[:k])
+		} else {
+			if e.buf == nil {
+				e.buf = make([]byte, writeChunk*ss)
+			}
+			b = e.buf[:k*ss]
+			e.nonfin += int64(encodeComplex(e.dt, b, src[:k]))
+		}
+		m, err := w.Write(b)
+		written += int64(m)
+		if err != nil {
+			return written, err
+		}
+		src = src[k:]
+	}
+	return written, nil
+}
