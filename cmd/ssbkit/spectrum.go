@@ -23,7 +23,9 @@ axis is absolute when the centre frequency is known (SigMF metadata or
 --center), else an offset from the centre.
 
 --list and --json print the signals found: the noise floor is a low
-quantile of the smoothed spectrum, bins 8 dB (--threshold) above it are
+quantile of the smoothed spectrum (but no lower than 100 dB under its
+strongest bin, so that a noiseless synthetic file does not list every
+rounding spur), bins 8 dB (--threshold) above it are
 occupied, nearby runs are grouped, and each group gets a kind from its
 shape (usb, lsb, am, carrier, unknown). offset_hz is the estimated carrier;
 for SSB it sits 300 Hz (the usual low audio edge, common practice) outside
@@ -137,7 +139,7 @@ func runSpectrum(e *env, args []string) error {
 	spec := acc.Spectrum()
 	dopt := spectral.DetectOptions{ThresholdDB: *thr}
 	signals := spectral.Detect(spec.Density, meta.Rate, dopt)
-	floor := spectral.NoiseFloor(spec.Density, meta.Rate, 60)
+	floor := spectral.DetectionFloor(spec.Density, meta.Rate, dopt)
 
 	if *out != "" {
 		f, err := createOutput(*out, *force, in)

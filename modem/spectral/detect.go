@@ -50,6 +50,15 @@ type DetectOptions struct {
 	// the usual low edge of a voice transmitter's passband, common
 	// practice).
 	AudioLowHz float64
+	// DynamicRangeDB bounds the noise floor from below at this many dB
+	// under the strongest bin of the smoothed spectrum (default 100 dB).
+	// A synthetic or float capture has no analogue noise: its floor is
+	// rounding noise some 200 dB down, and without the bound every
+	// rounding spur and the far skirts of the window would count as
+	// signals. 100 dB is beyond the spurious-free range of receivers and
+	// 16-bit converters (common practice), so real captures are not
+	// affected.
+	DynamicRangeDB float64
 }
 
 func (o DetectOptions) withDefaults() DetectOptions {
@@ -67,6 +76,9 @@ func (o DetectOptions) withDefaults() DetectOptions {
 	}
 	if o.AudioLowHz == 0 {
 		o.AudioLowHz = 300
+	}
+	if o.DynamicRangeDB == 0 {
+		o.DynamicRangeDB = 100
 	}
 	return o
 }
@@ -125,10 +137,32 @@ func NoiseFloor(psd []float64, rate, smoothHz float64) float64 {
 	return s[int(noiseQuantile*float64(len(s)-1))]
 }
 
+// DetectionFloor returns the noise density Detect works from: NoiseFloor
+// of psd over opt.SmoothHz, but no lower than opt.DynamicRangeDB under the
+// strongest bin of the smoothed spectrum.
+func DetectionFloor(psd []float64, rate float64, opt DetectOptions) float64 {
+	if len(psd) == 0 || !(rate > 0) {
+		return 0
+	}
+	opt = opt.withDefaults()
+	return detectionFloor(psd, smooth(psd, smoothBins(opt.SmoothHz, rate/float64(len(psd)))), rate, opt)
+}
+
+// detectionFloor is DetectionFloor with the smoothed spectrum sm given.
+func detectionFloor(psd, sm []float64, rate float64, opt DetectOptions) float64 {
+	floor := NoiseFloor(psd, rate, opt.SmoothHz)
+	if top := slices.Max(sm); top > 0 {
+		floor = math.Max(floor, top*math.Pow(10, -opt.DynamicRangeDB/10))
+	}
+	return floor
+}
+
 // Detect finds the signals in a centred power spectral density (as
 // returned by Accumulator.PSD) of a capture at rate Hz. The steps:
 //
-//  1. the noise floor N₀ is NoiseFloor's low quantile of the smoothed PSD;
+//  1. the noise floor N₀ is NoiseFloor's low quantile of the smoothed PSD,
+//     but at least the strongest smoothed bin less DynamicRangeDB
+//     (DetectionFloor);
 //  2. bins of the smoothed PSD above N₀·10^(ThresholdDB/10) are occupied;
 //     runs closer than MergeHz are joined, and each group's edges are
 //     pulled in to the outermost raw bins above the threshold;
@@ -153,7 +187,7 @@ func Detect(psd []float64, rate float64, opt DetectOptions) []Signal {
 	bin := rate / float64(n)
 	sw := smoothBins(opt.SmoothHz, bin)
 	sm := smooth(psd, sw)
-	floor := NoiseFloor(psd, rate, opt.SmoothHz)
+	floor := detectionFloor(psd, sm, rate, opt)
 	if !(floor > 0) {
 		// an all-zero capture has nothing in it
 		return nil

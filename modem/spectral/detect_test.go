@@ -2,6 +2,7 @@ package spectral
 
 import (
 	"math"
+	"slices"
 	"testing"
 )
 
@@ -102,5 +103,47 @@ func TestDetectToneAM(t *testing.T) {
 	if len(s) != 2 || s[0].Kind != KindCarrier || s[1].Kind != KindAM || math.Abs(s[1].OffsetHz-9000) > rate/2048 ||
 		s[1].LowHz > 8000 || s[1].HighHz < 10000 {
 		t.Errorf("found %+v, want a carrier at −6000 Hz and AM at 9000 Hz spanning 8–10 kHz", s)
+	}
+}
+
+func TestDetectNoiselessCapture(t *testing.T) {
+	// A synthetic capture without noise (a float file made by tx, say) has
+	// only rounding noise, some 200 dB under a full-scale tone. Detect
+	// bounds the floor DynamicRangeDB (100 dB) under the strongest bin, so
+	// a clean tone with one spur 60 dB down (a typical opposite-sideband
+	// image, issue 4's limit) is found as two carriers and the Hann
+	// window's far skirts are not signals. Edge tolerance: the Hann
+	// sidelobes fall 18 dB per octave from −31.5 dB at about 2.5 bins
+	// (Harris, Proc. IEEE 66(1), 1978, table 1), so at 92 dB under the
+	// peak (floor plus the 8 dB threshold) the skirt is within
+	// 2.5·2^((92−31.5)/18) ≈ 26 bins of the line; 28 allowed. Without
+	// the bound the skirt spans the band and swallows the spur.
+	const (
+		rate     = 48000.0
+		nfft     = 2048
+		edgeBins = 28
+	)
+	bin := rate / nfft
+	a := NewAccumulator(nfft, rate)
+	a.Add(lines(1<<17, rate, line{f: 6000 + 3, amp: 0.9}, line{f: -4000 + 7, amp: 0.0009}))
+	psd := a.PSD()
+	s := Detect(psd, rate, DetectOptions{})
+	if len(s) != 2 {
+		t.Fatalf("found %d signals %+v, want 2 carriers", len(s), s)
+	}
+	for i, w := range []float64{-3993, 6003} {
+		t.Logf("%s at %.2f Hz, edges %.1f…%.1f Hz, SNR %.1f dB", s[i].Kind, s[i].OffsetHz, s[i].LowHz, s[i].HighHz, s[i].SNRdB)
+		if s[i].Kind != KindCarrier || math.Abs(s[i].OffsetHz-w) > bin || s[i].LowHz < w-edgeBins*bin || s[i].HighHz > w+edgeBins*bin {
+			t.Errorf("signal %d: %+v, want a carrier at %g Hz within ±%d bins", i, s[i], w, edgeBins)
+		}
+	}
+	// the floor is the bound, 100 dB under the smoothed peak, not the
+	// rounding noise
+	top := slices.Max(smooth(psd, smoothBins(60, bin)))
+	if got := dB(DetectionFloor(psd, rate, DetectOptions{})) - dB(top); math.Abs(got+100) > 1e-9 {
+		t.Errorf("detection floor %.3f dB under the peak, want −100", got)
+	}
+	if raw := dB(NoiseFloor(psd, rate, 60)) - dB(top); raw > -150 {
+		t.Errorf("rounding-noise floor only %.1f dB under the peak: the test no longer exercises the bound", raw)
 	}
 }
