@@ -1,10 +1,12 @@
 package main
 
 import (
+	"errors"
 	"fmt"
 	"io"
 	"os"
 	"strings"
+	"sync/atomic"
 
 	"github.com/spf13/pflag"
 
@@ -74,10 +76,24 @@ type captureOut struct {
 	iq.Writer
 	target  string
 	meta    iq.Meta
-	data    *outFile // nil for standard output
-	metaOut *outFile // SigMF metadata, nil otherwise
+	data    *outFile  // nil for standard output
+	metaOut *outFile  // SigMF metadata, nil otherwise
+	sink    *fileSink // with captureOpts.writeBehind, nil otherwise
 	samples int64
 	done    bool
+}
+
+// captureOpts are the settings of openCaptureOut. The zero value refuses
+// an existing target and writes on the caller's goroutine.
+type captureOpts struct {
+	// force allows overwriting an existing target.
+	force bool
+	// writeBehind hands the encoded bytes to a goroutine that makes the
+	// write system calls (a fileSink), so that on two cores they overlap
+	// the caller's work: for a 1.15 GB tx output they cost about as much
+	// as all the filtering. Encoding stays on the caller's goroutine.
+	// Memory stays bounded (fileSinkBufs buffers of fileSinkBuf bytes).
+	writeBehind bool
 }
 
 // Write writes src and counts the samples for the SigMF metadata.
@@ -104,14 +120,28 @@ func createCapture(target string, meta iq.Meta, force bool, inputs ...string) (*
 // createCaptureTo is createCapture with target "-" written to stdout (a
 // command's env.stdout, so tests can read it).
 func createCaptureTo(stdout io.Writer, target string, meta iq.Meta, force bool, inputs ...string) (*captureOut, error) {
+	return openCaptureOut(stdout, target, meta, captureOpts{force: force}, inputs...)
+}
+
+// openCaptureOut is createCaptureTo with the settings in opt (overwrite,
+// asynchronous writes). Commit and Abort also stop the write-behind
+// goroutine; Commit reports its first write error.
+func openCaptureOut(stdout io.Writer, target string, meta iq.Meta, opt captureOpts, inputs ...string) (*captureOut, error) {
+	force := opt.force
 	c := &captureOut{target: target, meta: meta}
 	dt := meta.Datatype
 	if dt == "" {
 		dt = iq.CF32
 	}
 	if target == "-" {
-		w, err := iq.NewRawWriter(stdout, dt)
+		var out io.Writer = stdout
+		if opt.writeBehind {
+			c.sink = newFileSink(stdout)
+			out = c.sink
+		}
+		w, err := iq.NewRawWriter(out, dt)
 		if err != nil {
+			c.Abort()
 			return nil, err
 		}
 		c.Writer = w
@@ -156,7 +186,12 @@ func createCaptureTo(stdout io.Writer, target string, meta iq.Meta, force bool, 
 	if container == iq.ContainerWAV {
 		kind = iq.ContainerWAV
 	}
-	w, err := iq.NewWriter(d, kind, dt, meta.Rate)
+	var dst io.WriteSeeker = d
+	if opt.writeBehind {
+		c.sink = newFileSink(d.File)
+		dst = c.sink
+	}
+	w, err := iq.NewWriter(dst, kind, dt, meta.Rate)
 	if err != nil {
 		c.Abort()
 		return nil, fmt.Errorf("%s: %w", target, err)
@@ -193,6 +228,12 @@ func (c *captureOut) Commit() error {
 		c.Abort()
 		return fmt.Errorf("%s: %w", c.target, err)
 	}
+	if c.sink != nil {
+		if err := c.sink.Close(); err != nil {
+			c.Abort()
+			return fmt.Errorf("%s: %w", c.target, err)
+		}
+	}
 	if c.data == nil { // standard output
 		c.done = true
 		return nil
@@ -224,10 +265,149 @@ func (c *captureOut) Abort() {
 		return
 	}
 	c.done = true
+	if c.sink != nil {
+		c.sink.Close() // stop the goroutine before the file is closed
+	}
 	if c.data != nil {
 		c.data.Abort()
 	}
 	if c.metaOut != nil {
 		c.metaOut.Abort()
 	}
+}
+
+// fileSinkBuf is the size of a fileSink buffer and of its writes: larger
+// writes cost more system time on a busy machine (measured: 1 MB writes
+// of a 1.15 GB file took 0.6 to 3.9 s of system time, 64 kB writes 0.5
+// to 0.8 s, on the project's shared 2-core machine).
+const fileSinkBuf = 64 << 10
+
+// fileSinkBufs is the number of buffers of a fileSink.
+const fileSinkBufs = 16
+
+// fileSink passes bytes to a goroutine that writes them to w, so that the
+// system calls overlap the caller's work. Write copies into buffers from
+// a fixed pool of fileSinkBufs (memory bounded whatever the output size)
+// and returns before the data is written; the first write error is sticky
+// and returned by later calls and by Close. Seek waits until everything
+// queued is written, then seeks w (which must then be an io.Seeker), so
+// a WAV writer can patch its header. Close writes what is queued and
+// stops the goroutine; it may be called more than once.
+type fileSink struct {
+	w       io.Writer
+	cur     []byte
+	q, free chan []byte
+	done    chan struct{}
+	err     atomic.Pointer[error]
+	closed  bool
+	held    [fileSinkBufs][]byte // Flush's scratch: every buffer, back from the goroutine
+}
+
+var _ io.WriteSeeker = (*fileSink)(nil)
+
+func newFileSink(w io.Writer) *fileSink {
+	s := &fileSink{w: w, q: make(chan []byte, fileSinkBufs), free: make(chan []byte, fileSinkBufs), done: make(chan struct{})}
+	for range fileSinkBufs {
+		s.free <- make([]byte, 0, fileSinkBuf)
+	}
+	s.cur = <-s.free
+	go func() {
+		defer close(s.done)
+		for b := range s.q {
+			if s.err.Load() == nil {
+				if _, err := w.Write(b); err != nil {
+					s.err.Store(&err)
+				}
+			}
+			s.free <- b[:0]
+		}
+	}()
+	return s
+}
+
+// error returns the first write error, or nil.
+func (s *fileSink) error() error {
+	if e := s.err.Load(); e != nil {
+		return *e
+	}
+	return nil
+}
+
+// Write queues p for writing.
+func (s *fileSink) Write(p []byte) (int, error) {
+	if err := s.error(); err != nil {
+		return 0, err
+	}
+	if s.closed {
+		return 0, errors.New("write after close")
+	}
+	n := len(p)
+	for len(p) > 0 {
+		k := copy(s.cur[len(s.cur):cap(s.cur)], p)
+		s.cur = s.cur[:len(s.cur)+k]
+		p = p[k:]
+		if len(s.cur) == cap(s.cur) {
+			s.q <- s.cur
+			s.cur = <-s.free
+		}
+	}
+	return n, nil
+}
+
+// Flush waits until everything written so far has reached w and returns
+// the first write error.
+func (s *fileSink) Flush() error {
+	if s.closed {
+		return s.error()
+	}
+	if len(s.cur) > 0 {
+		s.q <- s.cur
+		s.cur = nil
+	}
+	// Every buffer but the one held back is queued or free; once all
+	// are free, the queue is written.
+	need := fileSinkBufs
+	if s.cur != nil {
+		need--
+	}
+	for i := range need {
+		s.held[i] = <-s.free
+	}
+	if s.cur == nil {
+		s.cur = s.held[0]
+		s.held[0] = nil
+	}
+	for i := range need {
+		if s.held[i] != nil {
+			s.free <- s.held[i]
+			s.held[i] = nil
+		}
+	}
+	return s.error()
+}
+
+// Seek flushes, then seeks the underlying writer.
+func (s *fileSink) Seek(offset int64, whence int) (int64, error) {
+	if err := s.Flush(); err != nil {
+		return 0, err
+	}
+	sk, ok := s.w.(io.Seeker)
+	if !ok {
+		return 0, errors.New("output cannot seek")
+	}
+	return sk.Seek(offset, whence)
+}
+
+// Close writes what is queued, stops the goroutine and returns the first
+// write error.
+func (s *fileSink) Close() error {
+	if !s.closed {
+		s.closed = true
+		if len(s.cur) > 0 {
+			s.q <- s.cur
+		}
+		close(s.q)
+		<-s.done
+	}
+	return s.error()
 }

@@ -1,6 +1,8 @@
 package main
 
 import (
+	"io"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"strings"
@@ -79,5 +81,157 @@ func TestCreateCaptureKinds(t *testing.T) {
 	}
 	if _, err := createCapture(filepath.Join(dir, "x.mp3"), iq.Meta{Rate: 1}, false); err == nil {
 		t.Error("x.mp3 accepted")
+	}
+}
+
+// failWriter fails every write after the first n bytes.
+type failWriter struct{ n int }
+
+func (f *failWriter) Write(p []byte) (int, error) {
+	if len(p) > f.n {
+		return 0, os.ErrClosed
+	}
+	f.n -= len(p)
+	return len(p), nil
+}
+
+// TestFileSink checks that the asynchronous sink writes every byte in
+// order whatever the sizes of the writes, that Flush leaves nothing
+// queued, and that a write error reaches the caller (a later Write,
+// Flush or Close).
+func TestFileSink(t *testing.T) {
+	var want, got strings.Builder
+	s := newFileSink(&got)
+	for i, size := 0, 1; i < 300; i, size = i+1, (size*7+3)%(3*fileSinkBuf) {
+		p := make([]byte, size)
+		for k := range p {
+			p[k] = byte(i + k)
+		}
+		want.Write(p)
+		if n, err := s.Write(p); n != size || err != nil {
+			t.Fatalf("write %d: %d, %v", i, n, err)
+		}
+		if i%37 == 0 {
+			if err := s.Flush(); err != nil || got.Len() != want.Len() {
+				t.Fatalf("flush after write %d: %v; %d bytes written, want %d", i, err, got.Len(), want.Len())
+			}
+		}
+	}
+	if err := s.Close(); err != nil || got.String() != want.String() {
+		t.Fatalf("close: %v; %d bytes written, want %d, equal %v", err, got.Len(), want.Len(), got.String() == want.String())
+	}
+	if err := s.Close(); err != nil {
+		t.Errorf("second close: %v", err)
+	}
+	if _, err := s.Seek(0, io.SeekStart); err == nil {
+		t.Errorf("seek of a writer that cannot seek succeeded")
+	}
+
+	s = newFileSink(&failWriter{n: fileSinkBuf})
+	p := make([]byte, 5*fileSinkBuf)
+	_, err := s.Write(p)
+	ferr := s.Flush()
+	if cerr := s.Close(); err == nil && ferr == nil || cerr == nil {
+		t.Errorf("no error from a failing writer: write %v, flush %v, close %v", err, ferr, cerr)
+	}
+}
+
+// TestCaptureWriteBehind: with writeBehind, every kind of output (raw
+// formats, WAV with its header patched through Seek, a SigMF pair and
+// standard output) holds exactly the bytes of the synchronous writer,
+// whatever the sizes of the writes.
+func TestCaptureWriteBehind(t *testing.T) {
+	dir := t.TempDir()
+	rng := rand.New(rand.NewPCG(3, 4))
+	x := make([]complex64, 3*fileSinkBuf/8+1234)
+	for i := range x {
+		x[i] = complex(float32(rng.Float64()*2-1), float32(rng.Float64()*2-1))
+	}
+	write := func(c *captureOut) {
+		t.Helper()
+		for rest := x; len(rest) > 0; {
+			k := min(len(rest), 1+rng.IntN(9000))
+			if n, err := c.Write(rest[:k]); n != k || err != nil {
+				t.Fatalf("write: %d, %v", n, err)
+			}
+			rest = rest[k:]
+		}
+		if err := c.Commit(); err != nil {
+			t.Fatal(err)
+		}
+	}
+	for _, c := range []struct {
+		name  string
+		dt    iq.Datatype
+		files []string
+	}{
+		{"a.cf32", "", nil},
+		{"a.cu8", "", nil},
+		{"a.cs16", "", nil},
+		{"a.wav", "", nil},
+		{"b.wav", iq.CI16, nil},
+		{"a.sigmf-meta", iq.CI8, []string{"a.sigmf-data", "a.sigmf-meta"}},
+	} {
+		files := c.files
+		if files == nil {
+			files = []string{c.name}
+		}
+		meta := iq.Meta{Datatype: c.dt, Rate: 48000}
+		var want []string
+		for i, opt := range []captureOpts{{}, {force: true, writeBehind: true}} {
+			w, err := openCaptureOut(nil, filepath.Join(dir, c.name), meta, opt)
+			if err != nil {
+				t.Fatal(err)
+			}
+			write(w)
+			for k, f := range files {
+				b, err := os.ReadFile(filepath.Join(dir, f))
+				if err != nil {
+					t.Fatal(err)
+				}
+				if i == 0 {
+					want = append(want, string(b))
+				} else if string(b) != want[k] {
+					t.Errorf("%s: %s differs with writeBehind (%d bytes, want %d)", c.name, f, len(b), len(want[k]))
+				}
+			}
+		}
+	}
+	assertNoTemp(t, dir)
+	var sync, behind strings.Builder
+	for _, w := range []*strings.Builder{&sync, &behind} {
+		c, err := openCaptureOut(w, "-", iq.Meta{Rate: 1}, captureOpts{writeBehind: w == &behind})
+		if err != nil {
+			t.Fatal(err)
+		}
+		write(c)
+	}
+	if sync.Len() != 8*len(x) || sync.String() != behind.String() {
+		t.Errorf("standard output: %d bytes with writeBehind, %d without, want %d", behind.Len(), sync.Len(), 8*len(x))
+	}
+}
+
+// TestCaptureWriteBehindError: a write error of the goroutine reaches
+// Commit, and nothing is left behind.
+func TestCaptureWriteBehindError(t *testing.T) {
+	c, err := openCaptureOut(&failWriter{n: 100}, "-", iq.Meta{Rate: 1}, captureOpts{writeBehind: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	x := make([]complex64, fileSinkBuf)
+	c.Write(x)
+	c.Write(x)
+	if err := c.Commit(); err == nil {
+		t.Error("Commit after a failed write returned no error")
+	}
+	dir := t.TempDir()
+	c, err = openCaptureOut(nil, filepath.Join(dir, "a.wav"), iq.Meta{Rate: 8000}, captureOpts{writeBehind: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	c.Write(x)
+	c.Abort()
+	if ents, _ := os.ReadDir(dir); len(ents) != 0 {
+		t.Errorf("Abort left %d files", len(ents))
 	}
 }

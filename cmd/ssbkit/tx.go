@@ -7,7 +7,6 @@ import (
 	"io"
 	"math"
 	"strings"
-	"sync/atomic"
 
 	"ssbkit/hilbert"
 	"ssbkit/iq"
@@ -42,85 +41,6 @@ Examples:
   ssbkit tx --tone 1k --mode am --depth 0.5 -o am.wav
   ssbkit tx voice.wav --design allpass --sections 6 --carrier -20 -o r3e.cs16
   ssbkit tx voice.wav --method weaver --band 200:3000 --gain 0 -o weaver.cf32`
-
-// fileSinkBuf is the size of a fileSink buffer and of its writes: larger
-// writes cost more system time on a busy machine (measured: 1 MB writes
-// of a 1.15 GB file took 0.6 to 3.9 s of system time, 64 kB writes 0.5
-// to 0.8 s, on the project's shared 2-core machine).
-const fileSinkBuf = 64 << 10
-
-// fileSink passes bytes to a goroutine that writes them to w, so that the
-// system calls overlap the caller's work. Write copies into buffers from
-// a fixed pool of 16 (memory bounded whatever the output size) and
-// returns before the data is written; the first write error is sticky
-// and returned by later Writes and by Close, which waits until everything
-// queued is written. Close may be called more than once.
-type fileSink struct {
-	cur     []byte
-	q, free chan []byte
-	done    chan struct{}
-	err     atomic.Pointer[error]
-	closed  bool
-}
-
-func newFileSink(w io.Writer) *fileSink {
-	const nbuf = 16
-	s := &fileSink{q: make(chan []byte, nbuf), free: make(chan []byte, nbuf), done: make(chan struct{})}
-	for range nbuf {
-		s.free <- make([]byte, 0, fileSinkBuf)
-	}
-	s.cur = <-s.free
-	go func() {
-		defer close(s.done)
-		for b := range s.q {
-			if s.err.Load() == nil {
-				if _, err := w.Write(b); err != nil {
-					s.err.Store(&err)
-				}
-			}
-			s.free <- b[:0]
-		}
-	}()
-	return s
-}
-
-// Write queues p for writing.
-func (s *fileSink) Write(p []byte) (int, error) {
-	if e := s.err.Load(); e != nil {
-		return 0, *e
-	}
-	if s.closed {
-		return 0, errors.New("write after close")
-	}
-	n := len(p)
-	for len(p) > 0 {
-		k := copy(s.cur[len(s.cur):cap(s.cur)], p)
-		s.cur = s.cur[:len(s.cur)+k]
-		p = p[k:]
-		if len(s.cur) == cap(s.cur) {
-			s.q <- s.cur
-			s.cur = <-s.free
-		}
-	}
-	return n, nil
-}
-
-// Close writes what is queued, stops the goroutine and returns the first
-// write error.
-func (s *fileSink) Close() error {
-	if !s.closed {
-		s.closed = true
-		if len(s.cur) > 0 {
-			s.q <- s.cur
-		}
-		close(s.q)
-		<-s.done
-	}
-	if e := s.err.Load(); e != nil {
-		return *e
-	}
-	return nil
-}
 
 // txBlock is the number of audio samples modulated at a time.
 const txBlock = 1024
@@ -437,59 +357,26 @@ func runTx(e *env, args []string) error {
 	skip := int64(math.Round(m.Delay()))
 	// Carrier phase 0 at the first sample written.
 	m.SetCarrierPhase(-2 * math.Pi * math.Mod(cfg.Offset*float64(skip)/cfg.OutRate, 1))
-	w, err := createCapture(*out, meta, *force, input)
+	// With write-behind, this goroutine reads, modulates, measures the
+	// level and encodes, and another makes the write system calls (for a
+	// 1.15 GB output as costly as all the filtering), so on two cores they
+	// overlap. A block of txBlock audio samples (51 200 I/Q samples,
+	// 400 kB, at 48 kHz → 2.4 MS/s) stays within a core's L2 cache.
+	w, err := openCaptureOut(e.stdout, *out, meta, captureOpts{force: *force, writeBehind: true}, input)
 	if err != nil {
 		return err
 	}
 	defer w.Abort()
 	bar := newProgress(e, *quiet, "tx", total)
-	// Two goroutines, so that on two cores the write system calls (for a
-	// 1.15 GB output as costly as all the filtering) overlap the work.
-	// This one reads, modulates and measures the level. With a raw output
-	// file (the raw formats, SigMF data) it also encodes, and a fileSink
-	// goroutine only makes the system calls; for WAV and standard output
-	// the writer goroutine below encodes and writes. Blocks circulate
-	// through a fixed pool; a block of txBlock audio samples (51 200 I/Q
-	// samples, 400 kB, at 48 kHz → 2.4 MS/s) stays within a core's L2
-	// cache.
-	var sink *fileSink
-	if w.data != nil && iq.ContainerOf(*out) != iq.ContainerWAV {
-		sink = newFileSink(w.data.File)
-		defer sink.Close()
-		rw, err := iq.NewRawWriter(sink, w.meta.Datatype)
-		if err != nil {
-			return fmt.Errorf("%s: %w", *out, err)
-		}
-		w.Writer = rw
-	}
-	const nbuf = 4
-	free := make(chan []complex64, nbuf)
-	full := make(chan []complex64, nbuf)
 	abuf := make([]float32, txBlock)
-	for range nbuf {
-		free <- make([]complex64, 0, m.MaxOut(len(abuf)))
-	}
+	blk := make([]complex64, 0, m.MaxOut(len(abuf)))
 	var (
 		written int64
 		lv      modem.LevelMeter
 		werr    error
-		wdone   = make(chan struct{})
 	)
-	go func() {
-		defer close(wdone)
-		for y := range full {
-			if werr == nil {
-				if _, err := w.Write(y); err != nil {
-					werr = fmt.Errorf("%s: %w", *out, err)
-				}
-				bar.Add(len(y))
-			}
-			free <- y[:0]
-		}
-	}()
-	var queued int64
 	// emit trims the delay at the start and the tail beyond the audio's
-	// length, measures the kept part and queues it for writing.
+	// length, measures the kept part and writes it.
 	emit := func(y []complex64) {
 		d := 0
 		if skip > 0 {
@@ -497,58 +384,44 @@ func runTx(e *env, args []string) error {
 			skip -= int64(d)
 		}
 		end := len(y)
-		if rest := total - queued; int64(end-d) > rest {
+		if rest := total - written; int64(end-d) > rest {
 			end = d + int(rest)
 		}
-		if end > d {
-			// move the kept part to the front of the block
-			n := copy(y, y[d:end])
-			queued += int64(n)
-			lv.Add(y[:n])
-			if sink == nil {
-				full <- y[:n]
-				return
-			}
-			if werr == nil {
-				if _, err := w.Write(y[:n]); err != nil {
-					werr = fmt.Errorf("%s: %w", *out, err)
-				}
-				bar.Add(n)
-			}
+		if end <= d {
+			return
 		}
-		free <- y[:0]
+		y = y[d:end]
+		written += int64(len(y))
+		lv.Add(y)
+		if werr == nil {
+			if _, err := w.Write(y); err != nil {
+				werr = fmt.Errorf("%s: %w", *out, err)
+			}
+			bar.Add(len(y))
+		}
 	}
 	var rerr error
-	for rerr == nil {
+	for rerr == nil && werr == nil {
 		var n int
 		n, rerr = src.Read(abuf)
 		if n > 0 {
-			emit(m.Process(<-free, abuf[:n]))
+			emit(m.Process(blk[:0], abuf[:n]))
 		}
 	}
 	if rerr == io.EOF {
-		for queued < total {
-			before := queued
-			blk := <-free
-			emit(m.Flush(blk))
-			if queued == before && skip == 0 {
+		for written < total && werr == nil {
+			before := written
+			emit(m.Flush(blk[:0]))
+			if written == before && skip == 0 {
 				break
 			}
 		}
 	}
-	close(full)
-	<-wdone
-	if sink != nil {
-		if err := sink.Close(); err != nil && werr == nil {
-			werr = fmt.Errorf("%s: %w", *out, err)
-		}
-	}
-	written = queued
-	if rerr != io.EOF {
-		return rerr
-	}
 	if werr != nil {
 		return werr
+	}
+	if rerr != io.EOF {
+		return rerr
 	}
 	bar.Done()
 	if err := w.Commit(); err != nil {

@@ -2,6 +2,7 @@ package main
 
 import (
 	"encoding/json"
+	"io"
 	"math"
 	"math/cmplx"
 	"os"
@@ -190,44 +191,43 @@ func TestTxHelp(t *testing.T) {
 	}
 }
 
-// failWriter fails every write after the first n bytes.
-type failWriter struct{ n int }
-
-func (f *failWriter) Write(p []byte) (int, error) {
-	if len(p) > f.n {
-		return 0, os.ErrClosed
+// TestTxStdout: "-" writes cf32_le to the command's stdout (through the
+// write-behind capture output): --seconds at 48 kHz of samples, and with
+// --gain 0 the 1 kHz tone is a complex exponential of magnitude 1 at
+// +1 kHz (DESIGN.md unity convention).
+func TestTxStdout(t *testing.T) {
+	const tolDB = 0.01 // band filter and resampler ripple, as in TestTxTone
+	code, stdout, stderr := runCmd(t, "tx", "--tone", "1k", "--seconds", "0.5", "--gain", "0", "-q", "-o", "-")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
 	}
-	f.n -= len(p)
-	return len(p), nil
-}
-
-// TestFileSink checks that the asynchronous sink writes every byte in
-// order whatever the sizes of the writes, and that a write error reaches
-// the caller (a later Write or Close).
-func TestFileSink(t *testing.T) {
-	var want, got strings.Builder
-	s := newFileSink(&got)
-	for i, size := 0, 1; i < 300; i, size = i+1, (size*7+3)%(3*fileSinkBuf) {
-		p := make([]byte, size)
-		for k := range p {
-			p[k] = byte(i + k)
+	if stderr != "" {
+		t.Errorf("stderr with -q: %q", stderr)
+	}
+	if len(stdout) != 24000*8 {
+		t.Fatalf("%d bytes on stdout, want %d (0.5 s at 48 kHz, 8 bytes a sample)", len(stdout), 24000*8)
+	}
+	s, err := iq.Open("-", iq.Options{Format: iq.CF32, Rate: 48000, Stdin: strings.NewReader(stdout)})
+	if err != nil {
+		t.Fatal(err)
+	}
+	x := make([]complex64, 24000)
+	n := 0
+	for n < len(x) {
+		k, err := s.Read(x[n:])
+		n += k
+		if err == io.EOF {
+			break
 		}
-		want.Write(p)
-		if n, err := s.Write(p); n != size || err != nil {
-			t.Fatalf("write %d: %d, %v", i, n, err)
+		if err != nil {
+			t.Fatal(err)
 		}
 	}
-	if err := s.Close(); err != nil || got.String() != want.String() {
-		t.Fatalf("close: %v; %d bytes written, want %d, equal %v", err, got.Len(), want.Len(), got.String() == want.String())
+	if n != len(x) {
+		t.Fatalf("read %d samples, want %d", n, len(x))
 	}
-	if err := s.Close(); err != nil {
-		t.Errorf("second close: %v", err)
-	}
-
-	s = newFileSink(&failWriter{n: fileSinkBuf})
-	p := make([]byte, 5*fileSinkBuf)
-	_, err := s.Write(p)
-	if cerr := s.Close(); err == nil && cerr == nil {
-		t.Errorf("no error from a failing writer")
+	seg := x[2400:21600]
+	if g := 20 * math.Log10(cmplx.Abs(toneAt(seg, 1000, 48000))); math.Abs(g) > tolDB {
+		t.Errorf("tone at +1 kHz: %.3f dB, want 0 (unity)", g)
 	}
 }
