@@ -247,15 +247,15 @@ func runRx(e *env, args []string) error {
 				fmt.Fprintf(e.stderr, ", %d samples clipped (lower --gain or use --agc)", writers[i].clipped)
 			}
 			fmt.Fprintln(e.stderr)
-			if s := c.SAM(); s != nil && s.LockTime() < 0 {
-				fmt.Fprintf(e.stderr, "ssbkit: rx: warning: %s: sam found no carrier to lock to; the audio is the unlocked in-phase part\n", targets[i])
-			}
 		}
-	} else {
-		for i := range chans {
-			if writers[i].clipped > 0 {
-				fmt.Fprintf(e.stderr, "ssbkit: rx: %s: %d samples clipped\n", targets[i], writers[i].clipped)
-			}
+	}
+	// Warnings are not silenced by -q.
+	for i, c := range rcv.Channels() {
+		if *quiet && writers[i].clipped > 0 {
+			fmt.Fprintf(e.stderr, "ssbkit: rx: warning: %s: %d samples clipped\n", targets[i], writers[i].clipped)
+		}
+		if s := c.SAM(); s != nil && s.LockTime() < 0 {
+			fmt.Fprintf(e.stderr, "ssbkit: rx: warning: %s: sam found no carrier to lock to; the audio is the unlocked in-phase part\n", targets[i])
 		}
 	}
 	return nil
