@@ -294,7 +294,12 @@ func writeMeasureText(w io.Writer, in string, meta iq.Meta, r *spectral.Result, 
 	if meta.HasCenter {
 		car += fmt.Sprintf(" (%.1f Hz)", meta.Center+r.CarrierOffsetHz)
 	}
-	p("carrier at %s, %s sideband, band %g–%g Hz, noise %.1f dBFS/Hz\n\n", car, r.Sideband, r.BandHz[0], r.BandHz[1], r.NoiseDBFSPerHz)
+	noise := fmt.Sprintf("%.1f dBFS/Hz", r.NoiseDBFSPerHz)
+	if r.NoiseDBFSPerHz <= -300 {
+		// a noiseless (synthetic) capture: dB of zero is floored at −400
+		noise = "none (below -300 dBFS/Hz)"
+	}
+	p("carrier at %s, %s sideband, band %g–%g Hz, noise %s\n\n", car, r.Sideband, r.BandHz[0], r.BandHz[1], noise)
 	am := r.CarrierDBc >= amCarrierDBc
 	p("  wanted sideband     %8.2f dBFS\n", r.WantedDBFS)
 	p("  unwanted sideband   %8.2f dBFS\n", r.UnwantedDBFS)
