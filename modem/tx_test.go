@@ -277,6 +277,21 @@ func TestTxDefaultSuppression(t *testing.T) {
 	if a.SuppressionMinDB < 60 {
 		t.Errorf("default suppression %.1f dB", a.SuppressionMinDB)
 	}
+	// and measured in the generated I/Q at the band edges and centre
+	// (tones 20 Hz inside the edges, where the band filter passes them
+	// whole): the opposite-sideband line at −f at least 60 dB under the
+	// tone at +f (issue 4: ≥ 60 dB over the pass band by default).
+	const minDB = 60
+	for _, f := range []float64{320, 1500, 2680} {
+		x := tones([]float64{f}, 0.5, 48000, 48000)
+		y, _ := modulateAll(t, TxConfig{AudioRate: 48000, OutRate: 48000, BandLow: 300, BandHigh: 2700}, x, 4096)
+		seg := y[9600:38400]
+		got := 20 * math.Log10(toneLevel(seg, f, 48000)/toneLevel(seg, -f, 48000))
+		t.Logf("default usb, tone %g Hz: measured suppression %.1f dB", f, got)
+		if got < minDB {
+			t.Errorf("default usb, tone %g Hz: opposite sideband %.1f dB down, want ≥ %d", f, got, minDB)
+		}
+	}
 }
 
 // speech returns a speech-like signal: a gliding 110…180 Hz pitch with
