@@ -121,7 +121,7 @@ func runSweep(e *env, args []string) error {
 		}
 	}
 	rows := make([]sweepRow, 0, len(specs))
-	bar := newProgress(e, *quiet || len(specs) < 50 && !*verify, "sweep", int64(len(specs)))
+	bar := newProgressCount(e, *quiet || len(specs) < 50 && !*verify, "sweep", int64(len(specs)))
 	for _, s := range specs {
 		sp, err := hilbert.New(s)
 		if err != nil {
