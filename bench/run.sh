@@ -12,14 +12,7 @@
 # one run.
 set -euo pipefail
 
-here=$(cd "$(dirname "$0")" && pwd)
-root=$(cd "$here/.." && pwd)
-refdir=${REFDIR:-$root/../shared/bench}
-DATA=${DATA:-${TMPDIR:-/tmp}/iqperf}
-export DATA
-PY=/usr/bin/python3
-work=$(mktemp -d)
-trap 'rm -rf "$work"' EXIT
+. "$(dirname "$0")/lib.sh"
 
 sections=()
 runs=3
@@ -33,21 +26,7 @@ done
 [ ${#sections[@]} -gt 0 ] || sections=(rx)
 
 # ---------------------------------------------------------------- setup
-if [ ! -x /usr/bin/time ]; then
-	echo "installing GNU time (peak memory accounting)" >&2
-	apt-get install -y time >/dev/null 2>&1 || { apt-get update >/dev/null && apt-get install -y time >/dev/null; }
-fi
-if ! $PY -c 'import numpy, scipy' 2>/dev/null; then
-	echo "installing python3-scipy (the reference pipelines)" >&2
-	apt-get install -y python3-scipy >/dev/null 2>&1 || { apt-get update >/dev/null && apt-get install -y python3-scipy >/dev/null; }
-fi
-echo "building ssbkit" >&2
-(cd "$root" && go build -o "$work/ssbkit" ./cmd/ssbkit)
-ssbkit=$work/ssbkit
-if [ ! -s "$DATA/capture_60s.cu8" ] || [ ! -s "$DATA/capture.json" ]; then
-	echo "generating the test capture in $DATA (about 90 s, once)" >&2
-	$PY "$refdir/gen_capture.py"
-fi
+bench_setup capture_60s.cu8 capture.json
 cap=$DATA/capture_60s.cu8
 insamples=$(( $(stat -c %s "$cap") / 2 ))
 # warm the page cache so that neither side pays the first read

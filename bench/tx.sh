@@ -18,32 +18,10 @@
 # the median and the CPU figures are shown beside the best.
 set -euo pipefail
 
-here=$(cd "$(dirname "$0")" && pwd)
-root=$(cd "$here/.." && pwd)
-refdir=${REFDIR:-$root/../shared/bench}
-DATA=${DATA:-${TMPDIR:-/tmp}/iqperf}
-export DATA
-PY=/usr/bin/python3
 runs=${1:-3}
-work=$(mktemp -d)
-trap 'rm -rf "$work"' EXIT
-
-if [ ! -x /usr/bin/time ]; then
-	echo "installing GNU time (peak memory accounting)" >&2
-	apt-get install -y time >/dev/null 2>&1 || { apt-get update >/dev/null && apt-get install -y time >/dev/null; }
-fi
-if ! $PY -c 'import numpy, scipy' 2>/dev/null; then
-	echo "installing python3-scipy (the reference pipeline)" >&2
-	apt-get install -y python3-scipy >/dev/null 2>&1 || { apt-get update >/dev/null && apt-get install -y python3-scipy >/dev/null; }
-fi
-echo "building ssbkit" >&2
-(cd "$root" && go build -o "$work/ssbkit" ./cmd/ssbkit)
-ssbkit=$work/ssbkit
+. "$(dirname "$0")/lib.sh"
+bench_setup audio_60s.wav
 audio=$DATA/audio_60s.wav
-if [ ! -s "$audio" ]; then
-	echo "generating the test data in $DATA (about 90 s, once)" >&2
-	$PY "$refdir/gen_capture.py"
-fi
 cat "$audio" >/dev/null
 outsamples=144000000 # 60 s at 2.4 MS/s
 
