@@ -488,46 +488,65 @@ func (r *Resampler) Delay() float64 { return r.delay }
 
 // MaxOut returns the largest number of outputs Process can produce for n
 // inputs.
-func (r *Resampler) MaxOut(n int) int {
-	if len(r.stages) == 0 {
-		return n
-	}
-	for i := range r.stages {
-		n = r.stages[i].maxOut(n)
-	}
-	return n
-}
+func (r *Resampler) MaxOut(n int) int { return chainMaxOut[complex64](r.stages, n) }
 
 // Reset clears the history and the phase.
-func (r *Resampler) Reset() {
-	for i := range r.stages {
-		r.stages[i].reset()
-	}
-}
+func (r *Resampler) Reset() { chainReset[complex64](r.stages) }
 
 // Process resamples src into dst and returns dst[:n], n ≤ MaxOut(len(src)).
 // A nil dst, or one whose capacity is below MaxOut(len(src)), is
 // allocated. dst must not overlap src.
 func (r *Resampler) Process(dst, src []complex64) []complex64 {
-	if len(r.stages) == 0 {
+	return chainProcess(r.stages, r.scratch, dst, src)
+}
+
+// stage is what the chain functions need of a polyphase stage: *cstage
+// or *rstage, on complex or real samples T.
+type stage[T float32 | complex64, S any] interface {
+	*S
+	process(dst, src []T) []T
+	maxOut(n int) int
+	reset()
+}
+
+// chainMaxOut bounds the outputs of the stages for n inputs.
+func chainMaxOut[T float32 | complex64, S any, P stage[T, S]](stages []S, n int) int {
+	for i := range stages {
+		n = P(&stages[i]).maxOut(n)
+	}
+	return n
+}
+
+// chainReset resets every stage.
+func chainReset[T float32 | complex64, S any, P stage[T, S]](stages []S) {
+	for i := range stages {
+		P(&stages[i]).reset()
+	}
+}
+
+// chainProcess is Process of Resampler and RealResampler: src runs
+// through the stages resampleChunk inputs at a time, each stage but the
+// last writing into its scratch slice; no stages is a copy.
+func chainProcess[T float32 | complex64, S any, P stage[T, S]](stages []S, scratch [][]T, dst, src []T) []T {
+	if len(stages) == 0 {
 		if cap(dst) < len(src) {
-			dst = make([]complex64, len(src))
+			dst = make([]T, len(src))
 		}
 		dst = dst[:len(src)]
 		copy(dst, src)
 		return dst
 	}
-	if cap(dst) < r.MaxOut(len(src)) {
-		dst = make([]complex64, 0, r.MaxOut(len(src)))
+	if m := chainMaxOut[T, S, P](stages, len(src)); cap(dst) < m {
+		dst = make([]T, 0, m)
 	}
 	dst = dst[:0]
-	last := len(r.stages) - 1
+	last := len(stages) - 1
 	for off := 0; off < len(src); off += resampleChunk {
 		x := src[off : off+min(resampleChunk, len(src)-off)]
 		for i := range last {
-			x = r.stages[i].process(r.scratch[i][:0], x)
+			x = P(&stages[i]).process(scratch[i][:0], x)
 		}
-		dst = r.stages[last].process(dst, x)
+		dst = P(&stages[last]).process(dst, x)
 	}
 	return dst
 }
@@ -576,42 +595,13 @@ func (r *RealResampler) Delay() float64 { return r.delay }
 
 // MaxOut returns the largest number of outputs Process can produce for n
 // inputs.
-func (r *RealResampler) MaxOut(n int) int {
-	for i := range r.stages {
-		n = r.stages[i].maxOut(n)
-	}
-	return n
-}
+func (r *RealResampler) MaxOut(n int) int { return chainMaxOut[float32](r.stages, n) }
 
 // Reset clears the history and the phase.
-func (r *RealResampler) Reset() {
-	for i := range r.stages {
-		r.stages[i].reset()
-	}
-}
+func (r *RealResampler) Reset() { chainReset[float32](r.stages) }
 
 // Process resamples src into dst and returns dst[:n]; see
 // Resampler.Process.
 func (r *RealResampler) Process(dst, src []float32) []float32 {
-	if len(r.stages) == 0 {
-		if cap(dst) < len(src) {
-			dst = make([]float32, len(src))
-		}
-		dst = dst[:len(src)]
-		copy(dst, src)
-		return dst
-	}
-	if cap(dst) < r.MaxOut(len(src)) {
-		dst = make([]float32, 0, r.MaxOut(len(src)))
-	}
-	dst = dst[:0]
-	last := len(r.stages) - 1
-	for off := 0; off < len(src); off += resampleChunk {
-		x := src[off : off+min(resampleChunk, len(src)-off)]
-		for i := range last {
-			x = r.stages[i].process(r.scratch[i][:0], x)
-		}
-		dst = r.stages[last].process(dst, x)
-	}
-	return dst
+	return chainProcess(r.stages, r.scratch, dst, src)
 }
