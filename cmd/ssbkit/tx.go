@@ -72,7 +72,7 @@ func runTx(e *env, args []string) error {
 	method := fs.String("method", "phasing", "SSB method: phasing, weaver")
 	design := fs.String("design", modem.DefaultSplitterDesign, "phase splitter: "+strings.Join(hilbert.Designs[:7], ", ")+" (with --band off: allpass, 12 sections)")
 	taps := fs.Int("taps", 0, fmt.Sprintf("splitter length: FIR taps (odd), Weaver low-pass taps or FFT block size (default %d; fft 1024)", modem.DefaultSplitterTaps))
-	sections := fs.Int("sections", 0, "all-pass sections per path for --design allpass (default 6)")
+	sections := fs.Int("sections", 0, "all-pass sections of both paths together for --design allpass (default 6; as in sweep)")
 	band := fs.String("band", "300:2700", "audio pass band LOW:HIGH in Hz, or off")
 	offset := fs.String("offset", "0", "where the (suppressed) carrier sits in the output baseband, Hz")
 	rate := fs.String("rate", "48k", "output I/Q sample rate in Hz")
