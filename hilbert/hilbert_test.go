@@ -749,3 +749,29 @@ func BenchmarkSweep(b *testing.B) {
 		}
 	}
 }
+
+// BenchmarkSweepAllOdd is the analysis behind
+// `ssbkit sweep --designs all --taps 7:255:2 --sections 1:16:1`: every
+// design at every odd length (fft at the same lengths, as the command
+// does), all-pass with 1 to 16 sections.
+func BenchmarkSweepAllOdd(b *testing.B) {
+	b.ReportAllocs()
+	for b.Loop() {
+		for _, d := range Designs {
+			if d == "allpass" {
+				for n := 1; n <= 16; n++ {
+					s := spec(d, 0)
+					s.Sections = n
+					Analyze(mustNew(b, s), 300, 2700)
+				}
+				continue
+			}
+			for n := 7; n <= 255; n += 2 {
+				if d == "fft" && n < MinFFT {
+					continue
+				}
+				Analyze(mustNew(b, spec(d, n)), 300, 2700)
+			}
+		}
+	}
+}

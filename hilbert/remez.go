@@ -37,7 +37,16 @@ var errRemez = errors.New("equiripple design did not converge")
 // remezHilbert returns h[0..M] (h[0] = 0, zero at even m) of the equiripple
 // Hilbert transformer of n = 2M+1 taps over [fe, rate/2 − fe], and the
 // peak error δ = max |1 − A| over the band.
-func remezHilbert(n int, fe, rate float64) (h []float64, delta float64, err error) {
+//
+// If an iterate's peak error on the fine grid falls below stop, the
+// exchange ends there and returns a nil h with that peak error: it bounds
+// the optimum from above (each iterate's peak error does), so the optimum
+// is below stop too. Callers that discard designs below a floor pass the
+// floor and save the iterations, which near float64 rounding may run to
+// the limit without settling. On the coarse grid the same event only
+// moves the exchange on to the fine grid: a coarse peak error bounds
+// nothing on the fine grid.
+func remezHilbert(n int, fe, rate, stop float64) (h []float64, delta float64, err error) {
 	m := (n - 1) / 2
 	k := (m + 1) / 2
 	h = make([]float64, m+1)
@@ -144,6 +153,12 @@ func remezHilbert(n int, fe, rate float64) (h []float64, delta float64, err erro
 			}
 			if emax-math.Abs(delta) <= 1e-12*math.Abs(delta)+1e-300 {
 				converged = true
+				break
+			}
+			if emax < stop {
+				if stage > 0 {
+					return nil, emax, nil
+				}
 				break
 			}
 			cur = extrema(cur[:0], e)
@@ -269,7 +284,7 @@ const remezFloor = 1e-8
 // a wider band and still exceeds about 166 dB over the requested one.
 func newEquiripple(s Spec) (*firSplitter, error) {
 	fe := edge(s)
-	h, d, err := remezHilbert(s.Taps, fe, s.Rate)
+	h, d, err := remezHilbert(s.Taps, fe, s.Rate, remezFloor)
 	if err != nil {
 		d = 0 // the exchange met float64 rounding: far below the floor
 	}
@@ -285,7 +300,7 @@ func newEquiripple(s Spec) (*firSplitter, error) {
 		f1 = math.Min(f1, fe/2)
 		var found bool
 		for range 12 {
-			h1, d1, err := remezHilbert(s.Taps, f1, s.Rate)
+			h1, d1, err := remezHilbert(s.Taps, f1, s.Rate, remezFloor)
 			if err != nil {
 				f1 /= 2
 				continue
