@@ -26,6 +26,32 @@ func BenchmarkDecode(b *testing.B) {
 			b.ReportMetric(float64(n)*float64(b.N)/b.Elapsed().Seconds()/1e6, "MS/s")
 		})
 	}
+	// The reference loops that the kernels of decode_amd64.s replace on
+	// amd64 with AVX2 (the figures before them).
+	ref := []struct {
+		dt  Datatype
+		dec func([]complex64, []byte)
+	}{
+		{CU8, func(d []complex64, s []byte) { decodeCU8Go(d, s) }},
+		{CI8, func(d []complex64, s []byte) { decodeCI8Go(d, s) }},
+		{CI16, func(d []complex64, s []byte) { decodeCI16Go(d, s) }},
+		{CF32, func(d []complex64, s []byte) { decodeCF32Go(d, s) }},
+	}
+	for _, r := range ref {
+		src := make([]byte, n*r.dt.SampleSize())
+		for i := range src {
+			src[i] = byte(i * 7)
+		}
+		dst := make([]complex64, n)
+		b.Run(string(r.dt)+"_reference", func(b *testing.B) {
+			b.SetBytes(int64(len(src)))
+			b.ReportAllocs()
+			for b.Loop() {
+				r.dec(dst, src)
+			}
+			b.ReportMetric(float64(n)*float64(b.N)/b.Elapsed().Seconds()/1e6, "MS/s")
+		})
+	}
 }
 
 // BenchmarkSource measures the whole read path (Source.Read from an

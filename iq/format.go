@@ -157,68 +157,6 @@ func init() {
 	ci8Rail[0x80], ci8Rail[0x7f] = 1, 1
 }
 
-// decodeComplex decodes len(dst) complex samples of datatype d from b
-// (which holds at least len(dst)*d.SampleSize() bytes) into dst. It
-// returns the number of samples with a component at full scale (the rail
-// codes for integers, |v| ≥ 1 for floats) and the number of components
-// that were NaN or ±Inf, which are replaced by 0.
-func decodeComplex(d Datatype, dst []complex64, b []byte) (clipped, nonfinite int) {
-	n := len(dst)
-	if n == 0 {
-		return 0, 0
-	}
-	switch d {
-	case CU8:
-		b = b[: 2*n : 2*n]
-		for i := range dst {
-			i0, q0 := b[2*i], b[2*i+1]
-			dst[i] = complex(cu8Table[i0], cu8Table[q0])
-			clipped += int(cu8Rail[i0] | cu8Rail[q0])
-		}
-	case CI8:
-		b = b[: 2*n : 2*n]
-		for i := range dst {
-			i0, q0 := b[2*i], b[2*i+1]
-			dst[i] = complex(ci8Table[i0], ci8Table[q0])
-			clipped += int(ci8Rail[i0] | ci8Rail[q0])
-		}
-	case CI16:
-		b = b[: 4*n : 4*n]
-		for i := range dst {
-			s := b[4*i : 4*i+4 : 4*i+4]
-			vi := int16(binary.LittleEndian.Uint16(s[0:2]))
-			vq := int16(binary.LittleEndian.Uint16(s[2:4]))
-			dst[i] = complex(float32(vi)*ci16Scale, float32(vq)*ci16Scale)
-			if vi == math.MaxInt16 || vi == math.MinInt16 || vq == math.MaxInt16 || vq == math.MinInt16 {
-				clipped++
-			}
-		}
-	case CF32:
-		b = b[: 8*n : 8*n]
-		for i := range dst {
-			s := b[8*i : 8*i+8 : 8*i+8]
-			vi := math.Float32frombits(binary.LittleEndian.Uint32(s[0:4]))
-			vq := math.Float32frombits(binary.LittleEndian.Uint32(s[4:8]))
-			// x−x is 0 for finite x and NaN for NaN and ±Inf.
-			if vi-vi != 0 {
-				vi = 0
-				nonfinite++
-			}
-			if vq-vq != 0 {
-				vq = 0
-				nonfinite++
-			}
-			if vi >= 1 || vi <= -1 || vq >= 1 || vq <= -1 {
-				clipped++
-			}
-			dst[i] = complex(vi, vq)
-		}
-	default:
-		panic("iq: decodeComplex of a real or unknown datatype")
-	}
-	return clipped, nonfinite
-}
-
 // decodeReal decodes len(dst) real samples of datatype d (RF32, RI16, or
 // the 24-bit PCM of a WAV, given as pcm24) from b into dst, with the same
 // counts as decodeComplex.

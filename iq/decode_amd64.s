@@ -1,0 +1,249 @@
+//go:build amd64 && !purego
+
+#include "textflag.h"
+
+// Decoding kernels for decode_amd64.go. Each step takes 16 samples; the
+// clip count ORs the rail masks of I and Q of a sample and counts the
+// samples with popcnt.
+
+// func decodeCU8AVX2(dst *complex64, src *byte, n int) (clipped int)
+TEXT ·decodeCU8AVX2(SB), NOSPLIT, $0-32
+	MOVQ dst+0(FP), DI
+	MOVQ src+8(FP), SI
+	MOVQ n+16(FP), CX
+	XORQ R8, R8
+	MOVL $0x42ff0000, AX         // 127.5
+	VMOVD AX, X15
+	VPBROADCASTD X15, Y15
+	VPXOR Y13, Y13, Y13          // rail code 0
+	VPCMPEQB Y12, Y12, Y12       // rail code 255
+	SHRQ $4, CX
+	JZ cu8done
+
+cu8loop:
+	VMOVDQU (SI), Y8
+	VPMOVZXBD 0(SI), Y0
+	VPMOVZXBD 8(SI), Y1
+	VPMOVZXBD 16(SI), Y2
+	VPMOVZXBD 24(SI), Y3
+	VPCMPEQB Y13, Y8, Y9
+	VPCMPEQB Y12, Y8, Y10
+	VPOR Y9, Y10, Y9
+	VPMOVMSKB Y9, AX
+	VCVTDQ2PS Y0, Y0
+	VCVTDQ2PS Y1, Y1
+	VCVTDQ2PS Y2, Y2
+	VCVTDQ2PS Y3, Y3
+	VSUBPS Y15, Y0, Y0
+	VSUBPS Y15, Y1, Y1
+	VSUBPS Y15, Y2, Y2
+	VSUBPS Y15, Y3, Y3
+	VDIVPS Y15, Y0, Y0
+	VDIVPS Y15, Y1, Y1
+	VDIVPS Y15, Y2, Y2
+	VDIVPS Y15, Y3, Y3
+	VMOVUPS Y0, 0(DI)
+	VMOVUPS Y1, 32(DI)
+	VMOVUPS Y2, 64(DI)
+	VMOVUPS Y3, 96(DI)
+	MOVL AX, BX
+	SHRL $1, BX
+	ORL BX, AX
+	ANDL $0x55555555, AX
+	POPCNTL AX, AX
+	ADDQ AX, R8
+	ADDQ $32, SI
+	ADDQ $128, DI
+	DECQ CX
+	JNZ cu8loop
+
+cu8done:
+	VZEROUPPER
+	MOVQ R8, clipped+24(FP)
+	RET
+
+// func decodeCI8AVX2(dst *complex64, src *byte, n int) (clipped int)
+TEXT ·decodeCI8AVX2(SB), NOSPLIT, $0-32
+	MOVQ dst+0(FP), DI
+	MOVQ src+8(FP), SI
+	MOVQ n+16(FP), CX
+	XORQ R8, R8
+	MOVL $0x3c000000, AX         // 2⁻⁷
+	VMOVD AX, X15
+	VPBROADCASTD X15, Y15
+	MOVL $0x80808080, AX         // rail code −128
+	VMOVD AX, X13
+	VPBROADCASTD X13, Y13
+	MOVL $0x7f7f7f7f, AX         // rail code 127
+	VMOVD AX, X12
+	VPBROADCASTD X12, Y12
+	SHRQ $4, CX
+	JZ ci8done
+
+ci8loop:
+	VMOVDQU (SI), Y8
+	VPMOVSXBD 0(SI), Y0
+	VPMOVSXBD 8(SI), Y1
+	VPMOVSXBD 16(SI), Y2
+	VPMOVSXBD 24(SI), Y3
+	VPCMPEQB Y13, Y8, Y9
+	VPCMPEQB Y12, Y8, Y10
+	VPOR Y9, Y10, Y9
+	VPMOVMSKB Y9, AX
+	VCVTDQ2PS Y0, Y0
+	VCVTDQ2PS Y1, Y1
+	VCVTDQ2PS Y2, Y2
+	VCVTDQ2PS Y3, Y3
+	VMULPS Y15, Y0, Y0
+	VMULPS Y15, Y1, Y1
+	VMULPS Y15, Y2, Y2
+	VMULPS Y15, Y3, Y3
+	VMOVUPS Y0, 0(DI)
+	VMOVUPS Y1, 32(DI)
+	VMOVUPS Y2, 64(DI)
+	VMOVUPS Y3, 96(DI)
+	MOVL AX, BX
+	SHRL $1, BX
+	ORL BX, AX
+	ANDL $0x55555555, AX
+	POPCNTL AX, AX
+	ADDQ AX, R8
+	ADDQ $32, SI
+	ADDQ $128, DI
+	DECQ CX
+	JNZ ci8loop
+
+ci8done:
+	VZEROUPPER
+	MOVQ R8, clipped+24(FP)
+	RET
+
+// func decodeCI16AVX2(dst *complex64, src *byte, n int) (clipped int)
+TEXT ·decodeCI16AVX2(SB), NOSPLIT, $0-32
+	MOVQ dst+0(FP), DI
+	MOVQ src+8(FP), SI
+	MOVQ n+16(FP), CX
+	XORQ R8, R8
+	MOVQ $0x1111111111111111, R9 // one bit of each 4-bit sample mask
+	MOVL $0x38000000, AX         // 2⁻¹⁵
+	VMOVD AX, X15
+	VPBROADCASTD X15, Y15
+	MOVL $0x80008000, AX         // rail code −32768
+	VMOVD AX, X13
+	VPBROADCASTD X13, Y13
+	MOVL $0x7fff7fff, AX         // rail code 32767
+	VMOVD AX, X12
+	VPBROADCASTD X12, Y12
+	SHRQ $4, CX
+	JZ ci16done
+
+ci16loop:
+	VMOVDQU 0(SI), Y8
+	VMOVDQU 32(SI), Y9
+	VPMOVSXWD 0(SI), Y0
+	VPMOVSXWD 16(SI), Y1
+	VPMOVSXWD 32(SI), Y2
+	VPMOVSXWD 48(SI), Y3
+	VPCMPEQW Y13, Y8, Y10
+	VPCMPEQW Y12, Y8, Y11
+	VPOR Y10, Y11, Y10
+	VPMOVMSKB Y10, AX
+	VPCMPEQW Y13, Y9, Y10
+	VPCMPEQW Y12, Y9, Y11
+	VPOR Y10, Y11, Y10
+	VPMOVMSKB Y10, BX
+	VCVTDQ2PS Y0, Y0
+	VCVTDQ2PS Y1, Y1
+	VCVTDQ2PS Y2, Y2
+	VCVTDQ2PS Y3, Y3
+	VMULPS Y15, Y0, Y0
+	VMULPS Y15, Y1, Y1
+	VMULPS Y15, Y2, Y2
+	VMULPS Y15, Y3, Y3
+	VMOVUPS Y0, 0(DI)
+	VMOVUPS Y1, 32(DI)
+	VMOVUPS Y2, 64(DI)
+	VMOVUPS Y3, 96(DI)
+	SHLQ $32, BX
+	ORQ BX, AX
+	MOVQ AX, BX
+	SHRQ $2, BX
+	ORQ BX, AX
+	ANDQ R9, AX
+	POPCNTQ AX, AX
+	ADDQ AX, R8
+	ADDQ $64, SI
+	ADDQ $128, DI
+	DECQ CX
+	JNZ ci16loop
+
+ci16done:
+	VZEROUPPER
+	MOVQ R8, clipped+24(FP)
+	RET
+
+// func decodeCF32AVX2(dst *complex64, src *byte, n int) (clipped, nonfinite int)
+TEXT ·decodeCF32AVX2(SB), NOSPLIT, $0-40
+	MOVQ dst+0(FP), DI
+	MOVQ src+8(FP), SI
+	MOVQ n+16(FP), CX
+	XORQ R8, R8
+	MOVL $0x7fffffff, AX         // magnitude bits
+	VMOVD AX, X15
+	VPBROADCASTD X15, Y15
+	MOVL $0x3f7fffff, AX         // largest magnitude below 1
+	VMOVD AX, X14
+	VPBROADCASTD X14, Y14
+	VPXOR Y13, Y13, Y13          // largest magnitude seen
+	SHRQ $4, CX
+	JZ cf32done
+
+cf32loop:
+	VMOVDQU 0(SI), Y0
+	VMOVDQU 32(SI), Y1
+	VMOVDQU 64(SI), Y2
+	VMOVDQU 96(SI), Y3
+	VMOVDQU Y0, 0(DI)
+	VMOVDQU Y1, 32(DI)
+	VMOVDQU Y2, 64(DI)
+	VMOVDQU Y3, 96(DI)
+	VPAND Y15, Y0, Y0
+	VPAND Y15, Y1, Y1
+	VPAND Y15, Y2, Y2
+	VPAND Y15, Y3, Y3
+	VPMAXSD Y0, Y13, Y13
+	VPMAXSD Y1, Y13, Y13
+	VPMAXSD Y2, Y13, Y13
+	VPMAXSD Y3, Y13, Y13
+	VPCMPGTD Y14, Y0, Y0
+	VPCMPGTD Y14, Y1, Y1
+	VPCMPGTD Y14, Y2, Y2
+	VPCMPGTD Y14, Y3, Y3
+	// Pack the 32-bit masks to bytes; adjacent I/Q pairs stay adjacent.
+	VPACKSSDW Y1, Y0, Y0
+	VPACKSSDW Y3, Y2, Y2
+	VPACKSSWB Y2, Y0, Y0
+	VPMOVMSKB Y0, AX
+	MOVL AX, BX
+	SHRL $1, BX
+	ORL BX, AX
+	ANDL $0x55555555, AX
+	POPCNTL AX, AX
+	ADDQ AX, R8
+	ADDQ $128, SI
+	ADDQ $128, DI
+	DECQ CX
+	JNZ cf32loop
+
+cf32done:
+	MOVL $0x7f7fffff, AX         // largest finite magnitude
+	VMOVD AX, X14
+	VPBROADCASTD X14, Y14
+	VPCMPGTD Y14, Y13, Y13
+	XORQ AX, AX
+	VPTEST Y13, Y13
+	SETNE AL
+	VZEROUPPER
+	MOVQ R8, clipped+24(FP)
+	MOVQ AX, nonfinite+32(FP)
+	RET
