@@ -166,39 +166,53 @@ func Analyze(s Splitter, low, high float64) Analysis {
 	if !(low > 0 && low < high) {
 		panic("hilbert: Analyze band must satisfy 0 < low < high")
 	}
-	supp := func(f float64) float64 {
-		return SuppressionAt(s, f)
+	var (
+		freq, pos, neg [gridPoints]float64
+		ratio          [gridPoints]float64 // |H(f)|/|H(−f)|, capped
+		step           = (high - low) / (gridPoints - 1)
+	)
+	for i := range freq {
+		freq[i] = low + float64(i)*step
 	}
+	freq[gridPoints-1] = high
+	magnitudes(s, freq[:], pos[:], neg[:])
 	var (
 		sum        float64
-		minDB      = math.Inf(1)
+		rmin       = math.Inf(1)
 		gmin, gmax = math.Inf(1), math.Inf(-1)
-		vals       [gridPoints]float64
-		step       = (high - low) / (gridPoints - 1)
 	)
-	for i := range vals {
-		f := low + float64(i)*step
-		if i == gridPoints-1 {
-			f = high
+	// The dB values are summed as logarithms of products of groups of
+	// eight ratios: each ratio lies in [1/capRatio, capRatio], so a
+	// product stays far inside float64 range, and one logarithm does for
+	// eight.
+	prod := 1.0
+	for i := range ratio {
+		r := capped(pos[i], neg[i])
+		ratio[i] = r
+		rmin = math.Min(rmin, r)
+		prod *= r
+		if i%8 == 7 || i == gridPoints-1 {
+			sum += 20 * math.Log10(prod)
+			prod = 1
 		}
-		h := s.Response(f)
-		n := s.Response(-f)
-		v := ratioDB(cmplxAbs(h), cmplxAbs(n))
-		vals[i] = v
-		sum += v
-		minDB = math.Min(minDB, v)
-		g := 20 * math.Log10(cmplxAbs(h))
-		gmin = math.Min(gmin, g)
-		gmax = math.Max(gmax, g)
+		gmin = math.Min(gmin, pos[i])
+		gmax = math.Max(gmax, pos[i])
 	}
 	// Refine each grid local minimum within 1 dB of the lowest: the true
 	// minimum lies between its neighbours.
-	gridMin := minDB
-	for i, v := range vals {
-		if v > gridMin+1 {
+	var fb, pb, nb [1]float64
+	supp := func(f float64) float64 {
+		fb[0] = f
+		magnitudes(s, fb[:], pb[:], nb[:])
+		return ratioDB(pb[0], nb[0])
+	}
+	minDB := ratioDB(rmin, 1)
+	oneDB := rmin * math.Pow(10, 1.0/20)
+	for i, v := range ratio {
+		if v > oneDB {
 			continue
 		}
-		if i > 0 && vals[i-1] < v || i < gridPoints-1 && vals[i+1] < v {
+		if i > 0 && ratio[i-1] < v || i < gridPoints-1 && ratio[i+1] < v {
 			continue
 		}
 		a := low + float64(max(i-1, 0))*step
@@ -209,7 +223,7 @@ func Analyze(s Splitter, low, high float64) Analysis {
 	return Analysis{
 		SuppressionMinDB:  minDB,
 		SuppressionMeanDB: sum / gridPoints,
-		RippleDB:          gmax - gmin,
+		RippleDB:          20 * math.Log10(gmax/gmin),
 		DelaySamples:      d,
 		DelayMS:           1000 * d / s.Spec().Rate,
 		MACsPerSample:     s.MACs(),
@@ -222,12 +236,23 @@ func SuppressionAt(s Splitter, f float64) float64 {
 	return ratioDB(cmplxAbs(s.Response(f)), cmplxAbs(s.Response(-f)))
 }
 
+// capRatio is 10^(MaxSuppressionDB/20), the largest ratio reported.
+const capRatio = 1e15
+
 // ratioDB returns 20·log10(p/n) capped at MaxSuppressionDB.
 func ratioDB(p, n float64) float64 {
-	if n <= p*math.Pow(10, -MaxSuppressionDB/20.0) {
+	if n <= p/capRatio {
 		return MaxSuppressionDB
 	}
 	return 20 * math.Log10(p/n)
+}
+
+// capped returns p/n capped at capRatio, as ratioDB does in dB.
+func capped(p, n float64) float64 {
+	if n <= p/capRatio {
+		return capRatio
+	}
+	return p / n
 }
 
 func cmplxAbs(c complex128) float64 { return math.Hypot(real(c), imag(c)) }
