@@ -8,12 +8,14 @@ import (
 )
 
 // exactBits is the tolerance of the decoder checks: 0 ulp. Every value
-// of the format table is one correctly rounded float32 operation on
-// exact operands (v/128 and v/32768 are exact; (v − 127.5)/127.5 is one
-// IEEE division, whose float32 result equals the float64 quotient
-// rounded to float32 because double rounding is innocuous for division
-// when 53 ≥ 2·24 + 2: S. A. Figueroa, "When is double rounding
-// innocuous?", ACM SIGNUM Newsletter 30(3), 1995).
+// of the format table is its formula correctly rounded to float32
+// (v/128 and v/32768 are exact; (v − 127.5)/127.5 evaluated in float64
+// and rounded to float32 equals the float32 quotient because double
+// rounding is innocuous for division when 53 ≥ 2·24 + 2: S. A.
+// Figueroa, "When is double rounding innocuous?", ACM SIGNUM Newsletter
+// 30(3), 1995, from memory), and every decoder must give exactly that:
+// the cu8 kernel's reciprocal with one FMA correction is exact for its
+// 256 operands, which TestDecodeAllCodes checks code by code.
 const exactBits = 0
 
 // sameBits reports whether a and b have the same float32 bit patterns

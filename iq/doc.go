@@ -21,10 +21,11 @@
 //
 // Decoding goes through one bulk decoder for Source and DecodeComplex.
 // Its reference loops are plain Go (a 256-entry table for the 8-bit
-// formats); on amd64 CPUs with AVX2 a vector kernel gives the same bits:
-// widen to int32, convert, and scale — v·2⁻⁷ and v·2⁻¹⁵ are exact, and
-// (v − 127.5)/127.5 is one IEEE division, so each value is the table's
-// correctly rounded quotient. cf32_le is a copy with a comparison of the
+// formats); on amd64 CPUs with AVX2 and FMA a vector kernel gives the
+// same bits: widen to int32, convert, and scale — v·2⁻⁷ and v·2⁻¹⁵ are
+// exact, and (v − 127.5)/127.5 is a multiply by the reciprocal with one
+// FMA correction step, which gives the table's correctly rounded
+// quotient for all 256 codes (checked exhaustively). cf32_le is a copy with a comparison of the
 // magnitude bits for |v| ≥ 1 and for NaN/±Inf; a block holding such a
 // value is decoded again by the reference loop. Clipped samples are
 // counted from byte masks of the rail codes and popcnt, at no cost worth
