@@ -226,9 +226,17 @@ func (f *firFilter) Process(dst []complex64, src []float32) []complex64 {
 
 // odd computes outputs for taps at odd m; window i of the buffer holds
 // x[n−2M] … x[n]. The left half is read forwards from rev, the buffer
-// reversed, so both halves are walked forwards with stride 2 and the
-// compiler drops the bounds checks; the antisymmetry keeps one multiply
-// per tap pair.
+// reversed, so both halves are walked forwards with stride 2; the
+// antisymmetry keeps one multiply per tap pair.
+//
+// Four outputs are computed together, each with its own accumulator: one
+// tap h[j] serves all four, and output i+t reads L[3−t+2j] and R[t+2j]
+// of common left and right windows, so a step to the next tap loads only
+// two new samples on each side (the other two are the previous step's).
+// Four independent sums also hide the latency of the additions, which
+// bounds a single running sum. Every output, the ones left over at the
+// end of a chunk included, sums the same terms in the same order into one
+// float32 accumulator, so the result does not depend on block sizes.
 func (f *firFilter) odd(out []complex64) {
 	m := f.m
 	h := f.h
@@ -238,22 +246,40 @@ func (f *firFilter) odd(out []complex64) {
 	for t, v := range buf {
 		rev[lb-1-t] = v
 	}
-	for i := range out {
+	i := 0
+	for ; i+4 <= len(out); i += 4 {
+		// R[t+2j] = x[n_t−M+1+2j], L[3−t+2j] = x[n_t−M−1−2j] for
+		// output n_t = n_i + t.
+		r := buf[i+m+1 : i+m+3+2*k]
+		l := rev[lb-i-m-3 : lb-i-m-1+2*k]
+		var a0, a1, a2, a3 float32
+		l0, l1, r0, r1 := l[0], l[1], r[0], r[1]
+		for j, v := range h {
+			ln := l[2*j+2 : 2*j+4]
+			rn := r[2*j+2 : 2*j+4]
+			l2, l3, r2, r3 := ln[0], ln[1], rn[0], rn[1]
+			a0 += v * (l3 - r0)
+			a1 += v * (l2 - r1)
+			a2 += v * (l1 - r2)
+			a3 += v * (l0 - r3)
+			l0, l1, r0, r1 = l2, l3, r2, r3
+		}
+		o := out[i : i+4]
+		c := buf[i+m : i+m+4]
+		o[0] = complex(c[0], a0)
+		o[1] = complex(c[1], a1)
+		o[2] = complex(c[2], a2)
+		o[3] = complex(c[3], a3)
+	}
+	for ; i < len(out); i++ {
 		// x[n−M+1+2j] = buf[i+m+1+2j]; x[n−M−1−2j] = rev[lb−i−m+2j].
 		right := buf[i+m+1 : i+m+2*k]
 		left := rev[lb-i-m : lb-i-m+2*k-1]
-		var a0, a1 float32
-		j := 0
-		for ; j+1 < k; j += 2 {
-			l := left[2*j : 2*j+3]
-			r := right[2*j : 2*j+3]
-			a0 += h[j] * (l[0] - r[0])
-			a1 += h[j+1] * (l[2] - r[2])
+		var a float32
+		for j, v := range h {
+			a += v * (left[2*j] - right[2*j])
 		}
-		if j < k {
-			a0 += h[j] * (left[2*j] - right[2*j])
-		}
-		out[i] = complex(buf[i+m], a0+a1)
+		out[i] = complex(buf[i+m], a)
 	}
 }
 
