@@ -262,7 +262,7 @@ func NewDecimator(taps []float64, d, phase int) *Decimator {
 	if haveKernels {
 		f.kt = newKernelTaps(f.rev, nil)
 	}
-	f.buf = make([]complex64, f.l-1, f.l-1+stageChunk)
+	f.buf = make([]complex64, f.l-1, 2*(f.l-1))
 	return f
 }
 
@@ -281,36 +281,48 @@ func (f *Decimator) MaxOut(n int) int { return n/f.d + 1 }
 
 // Process decimates src, appending the outputs to dst[:0] (reallocated
 // when its capacity is below MaxOut(len(src))), and returns it. dst must
-// not overlap src.
+// not overlap src. Only the outputs whose window reaches into the history
+// read a copy (the history then the first L−1 inputs); the others read
+// src in place, so the input is not copied.
 func (f *Decimator) Process(dst, src []complex64) []complex64 {
 	if cap(dst) < f.MaxOut(len(src)) {
 		dst = make([]complex64, 0, f.MaxOut(len(src)))
 	}
 	dst = dst[:0]
-	l := f.l
-	h := f.rev
-	for len(src) > 0 {
-		c := min(stageChunk, len(src))
-		buf := append(f.buf[:l-1], src[:c]...)
-		j := f.next
-		if j < c {
-			cnt := (c-1-j)/f.d + 1
-			k := len(dst)
-			out := dst[k : k+cnt]
-			if f.kt != nil {
-				f.kt.dotReal(out, buf[j:], f.d)
-			} else {
-				dotRealGo(out, buf[j:], f.d, h)
-			}
-			dst = dst[:k+cnt]
-			j += cnt * f.d
-		}
-		f.next = j - c
-		copy(buf, buf[c:])
-		f.buf = buf[:l-1]
-		src = src[c:]
+	l, n := f.l, len(src)
+	hd := min(l-1, n)
+	head := append(f.buf[:l-1], src[:hd]...)
+	j := f.next
+	if j < hd { // windows head[j : j+l]
+		cnt := (hd-1-j)/f.d + 1
+		dst = f.dot(dst, head[j:], cnt)
+		j += cnt * f.d
+	}
+	if j < n { // j ≥ l−1: windows src[j−l+1 : j+1]
+		cnt := (n-1-j)/f.d + 1
+		dst = f.dot(dst, src[j-(l-1):], cnt)
+		j += cnt * f.d
+	}
+	f.next = j - n
+	if n >= l-1 {
+		copy(f.buf[:l-1], src[n-(l-1):])
+	} else {
+		copy(f.buf[:l-1], head[n:])
 	}
 	return dst
+}
+
+// dot appends cnt outputs of windows x[i·d : i·d+L] to dst, which has
+// the capacity.
+func (f *Decimator) dot(dst, x []complex64, cnt int) []complex64 {
+	k := len(dst)
+	out := dst[k : k+cnt]
+	if f.kt != nil {
+		f.kt.dotReal(out, x, f.d)
+	} else {
+		dotRealGo(out, x, f.d, f.rev)
+	}
+	return dst[:k+cnt]
 }
 
 // Interpolator raises the rate by an integer factor u with a polyphase
@@ -348,7 +360,7 @@ func NewInterpolator(h []float64, u int) *Interpolator {
 	if haveKernels {
 		it.kt = newInterpTaps(it.ph, k)
 	}
-	it.buf = make([]complex64, k-1, k-1+stageChunk)
+	it.buf = make([]complex64, k-1, 2*(k-1))
 	return it
 }
 
@@ -362,28 +374,34 @@ func (it *Interpolator) Reset() {
 }
 
 // Process interpolates src into dst[:len(src)·u] (reallocated when short)
-// and returns it. dst must not overlap src.
+// and returns it. dst must not overlap src. As in Decimator.Process, only
+// the first K−1 inputs read a copy after the history.
 func (it *Interpolator) Process(dst, src []complex64) []complex64 {
-	n := len(src) * it.u
-	if cap(dst) < n {
-		dst = make([]complex64, n)
+	n := len(src)
+	if cap(dst) < n*it.u {
+		dst = make([]complex64, n*it.u)
 	}
-	dst = dst[:n]
+	dst = dst[:n*it.u]
 	k := it.k
-	o := 0
-	for len(src) > 0 {
-		c := min(stageChunk, len(src))
-		buf := append(it.buf[:k-1], src[:c]...)
-		out := dst[o : o+c*it.u]
-		if it.kt != nil {
-			it.kt.interp(out, buf)
-		} else {
-			interpGo(out, buf, it.ph)
-		}
-		o += c * it.u
-		copy(buf, buf[c:])
-		it.buf = buf[:k-1]
-		src = src[c:]
+	hd := min(k-1, n)
+	head := append(it.buf[:k-1], src[:hd]...)
+	it.run(dst[:hd*it.u], head)
+	if n > hd { // inputs i ≥ K−1: windows src[i−K+1 : i+1]
+		it.run(dst[hd*it.u:], src)
+	}
+	if n >= k-1 {
+		copy(it.buf[:k-1], src[n-(k-1):])
+	} else {
+		copy(it.buf[:k-1], head[n:])
 	}
 	return dst
+}
+
+// run computes the outputs out of the inputs whose windows start at x.
+func (it *Interpolator) run(out, x []complex64) {
+	if it.kt != nil {
+		it.kt.interp(out, x)
+	} else {
+		interpGo(out, x, it.ph)
+	}
 }
