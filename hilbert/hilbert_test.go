@@ -275,7 +275,7 @@ func TestAnalyzeMinimumRefined(t *testing.T) {
 	// The minimum must be right to 0.05 dB (DESIGN.md): compare with a
 	// brute-force grid 100 times finer.
 	const tolDB = 0.05
-	for _, s := range []Spec{spec("equiripple", 101), spec("rect", 63), spec("allpass", 0), spec("weaver", 41)} {
+	for _, s := range []Spec{spec("equiripple", 101), spec("rect", 63), spec("allpass", 0), spec("weaver", 41), spec("fft", 63), spec("fft", 64)} {
 		if s.Design == "allpass" {
 			s.Sections = 6
 		}
