@@ -127,3 +127,57 @@ func decodeCF32Go(dst []complex64, b []byte) (clipped, nonfinite int) {
 	}
 	return clipped, nonfinite
 }
+
+// decodeCF32Words is the portable fast path for cf32_le, for machines
+// without the vector kernel: on a little-endian machine the bytes
+// already are the []complex64, so decoding is one pass over the 64-bit
+// words (one sample each) for the clip count and the non-finite test,
+// then a copy (memmove). A block holding NaN or ±Inf takes the
+// reference loop. The clip count is exact but taken in a second pass
+// only over the 256-sample pieces that reach full scale. Plain Go rather than a library: no package offers
+// this scan.
+//
+// For each 32-bit half h of a word, with m = h & 0x7fffffff its
+// magnitude bits, m + 0x40800000 reaches bit 31 exactly when m ≥
+// 0x3f800000, that is |v| ≥ 1 (IEEE Std 754-2019 clause 3.4: for
+// non-negative binary32 values the bit patterns order as the values),
+// and never carries into the other half; likewise m + 0x00800000
+// reaches bit 31 exactly when m ≥ 0x7f800000, that is NaN or ±Inf (as in
+// finiteCF32).
+func decodeCF32Words(dst []complex64, b []byte) (clipped, nonfinite int) {
+	if !nativeLE {
+		return decodeCF32Go(dst, b)
+	}
+	const (
+		magBits  = 0x7fffffff_7fffffff
+		clipBias = 0x40800000_40800000
+	)
+	b = b[: 8*len(dst) : 8*len(dst)]
+	le := binary.LittleEndian
+	var bad uint64
+	clip := 0
+	// Pieces of 256 samples: one cheap pass ORs both tests; only a piece
+	// with a component at |v| ≥ 1 (rare in a capture at a sane level) is
+	// scanned again to count its clipped samples.
+	for rest := b; len(rest) > 0; {
+		piece := rest[:min(8*256, len(rest))]
+		rest = rest[len(piece):]
+		var reach uint64
+		for p := piece; len(p) >= 8; p = p[8:] {
+			m := le.Uint64(p[:8]) & magBits
+			bad |= m + expCarry
+			reach |= m + clipBias
+		}
+		if reach&topBits != 0 {
+			for p := piece; len(p) >= 8; p = p[8:] {
+				t := (le.Uint64(p[:8])&magBits + clipBias) & topBits
+				clip += int((t | t<<32) >> 63) // bit 63: either half reached 1
+			}
+		}
+	}
+	if bad&topBits != 0 {
+		return decodeCF32Go(dst, b)
+	}
+	copy(cf32View(dst), b)
+	return clip, 0
+}

@@ -6,7 +6,8 @@ import "golang.org/x/sys/cpu"
 
 // haveDecodeKernels reports whether the AVX2 kernels of decode_amd64.s
 // run on this CPU (the cu8 one uses FMA, all use POPCNT for the clip
-// counts); without them every datatype decodes with its reference loop.
+// counts); without them the integer datatypes decode with their
+// reference loops and cf32_le with the portable word scan.
 var haveDecodeKernels = cpu.X86.HasAVX2 && cpu.X86.HasFMA && cpu.X86.HasPOPCNT
 
 // kernelBlock is the number of samples a kernel loop step decodes; the
@@ -83,7 +84,7 @@ func decodeCI16(dst []complex64, b []byte) int {
 
 func decodeCF32(dst []complex64, b []byte) (clipped, nonfinite int) {
 	if !haveDecodeKernels || len(dst) < kernelBlock {
-		return decodeCF32Go(dst, b)
+		return decodeCF32Words(dst, b)
 	}
 	k := len(dst) &^ (kernelBlock - 1)
 	clipped, bad := decodeCF32AVX2(&dst[0], &b[0], k)

@@ -114,7 +114,8 @@ func kernelInputs(r *rand.Rand, dt Datatype, n int, withNonFinite bool) []byte {
 
 // TestDecodeKernelsMatchReference: the chosen decoder (the AVX2 kernel
 // plus the reference loop for the last len mod 16 samples, where the
-// machine has the kernel) gives bit for bit the values and counts of the
+// machine has the kernel), and for cf32_le also the portable word scan
+// decodeCF32Words, give bit for bit the values and counts of the
 // reference loops decodeCU8Go … decodeCF32Go, for every length up to
 // 100 and some long ones, at misaligned starts of source and
 // destination. Tolerance exactBits: the kernels do the reference loops'
@@ -139,14 +140,23 @@ func TestDecodeKernelsMatchReference(t *testing.T) {
 				doff := r.IntN(2)
 				got := make([]complex64, n+1)[doff : doff+n]
 				want := make([]complex64, n)
-				gc, gnf := decodeComplex(dt, got, src)
 				wc, wnf := ref[dt](want, src)
-				if gc != wc || gnf != wnf {
-					t.Fatalf("%s n=%d: clipped %d non-finite %d, reference %d %d", dt, n, gc, gnf, wc, wnf)
+				paths := map[string]func([]complex64, []byte) (int, int){
+					"chosen": func(d []complex64, b []byte) (int, int) { return decodeComplex(dt, d, b) },
 				}
-				for i := range want {
-					if !sameBits(got[i], want[i], exactBits) {
-						t.Fatalf("%s n=%d sample %d: %v, reference %v", dt, n, i, got[i], want[i])
+				if dt == CF32 {
+					paths["words"] = decodeCF32Words
+				}
+				for name, dec := range paths {
+					clear(got)
+					gc, gnf := dec(got, src)
+					if gc != wc || gnf != wnf {
+						t.Fatalf("%s %s n=%d: clipped %d non-finite %d, reference %d %d", dt, name, n, gc, gnf, wc, wnf)
+					}
+					for i := range want {
+						if !sameBits(got[i], want[i], exactBits) {
+							t.Fatalf("%s %s n=%d sample %d: %v, reference %v", dt, name, n, i, got[i], want[i])
+						}
 					}
 				}
 			}
@@ -175,6 +185,38 @@ func TestDecodeCF32ClipBoundary(t *testing.T) {
 			if got, nf := decodeComplex(CF32, x, b); got != want || nf != 0 {
 				t.Errorf("%v at component %d: clipped %d non-finite %d, want %d 0", c.v, pos, got, nf, want)
 			}
+		}
+	}
+}
+
+// TestDecodeCF32SparseClips: in a long capture at a low level, samples
+// pushed to full scale at chosen positions (at the edges of the 16-sample
+// kernel steps and of the 256-sample pieces of the word scan, in I or in
+// Q) are counted once each, by every cf32 path: the count is the number
+// of positions (iq/doc.go: a sample is clipped when a component has
+// |v| ≥ 1).
+func TestDecodeCF32SparseClips(t *testing.T) {
+	x := randomIQ(newRng(), 1000)
+	for i := range x {
+		x[i] *= 0.5
+	}
+	at := []int{0, 15, 16, 255, 256, 511, 700, 999}
+	for k, i := range at {
+		if k%2 == 0 {
+			x[i] = complex(-1, imag(x[i]))
+		} else {
+			x[i] = complex(real(x[i]), 1.25)
+		}
+	}
+	b := append([]byte(nil), cf32View(x)...)
+	for name, dec := range map[string]func([]complex64, []byte) (int, int){
+		"chosen":    func(d []complex64, b []byte) (int, int) { return decodeComplex(CF32, d, b) },
+		"words":     decodeCF32Words,
+		"reference": decodeCF32Go,
+	} {
+		dst := make([]complex64, len(x))
+		if c, nf := dec(dst, b); c != len(at) || nf != 0 {
+			t.Errorf("%s: clipped %d non-finite %d, want %d 0", name, c, nf, len(at))
 		}
 	}
 }

@@ -2,8 +2,8 @@
 
 package iq
 
-// haveDecodeKernels is false: every datatype decodes with its reference
-// loop.
+// haveDecodeKernels is false: the integer datatypes decode with their
+// reference loops, cf32_le with the portable word scan and copy.
 const haveDecodeKernels = false
 
 func decodeCU8(dst []complex64, b []byte) int  { return decodeCU8Go(dst, b) }
@@ -11,5 +11,5 @@ func decodeCI8(dst []complex64, b []byte) int  { return decodeCI8Go(dst, b) }
 func decodeCI16(dst []complex64, b []byte) int { return decodeCI16Go(dst, b) }
 
 func decodeCF32(dst []complex64, b []byte) (clipped, nonfinite int) {
-	return decodeCF32Go(dst, b)
+	return decodeCF32Words(dst, b)
 }
