@@ -191,6 +191,9 @@ func TestSourceBlockSizes(t *testing.T) {
 // the real-recording path and the WAV reader as for raw (see
 // TestSourceReadAllocs), and for both writers after their first block.
 func TestReadWriteAllocs(t *testing.T) {
+	if raceEnabled {
+		t.Skip("the race detector allocates")
+	}
 	dir := t.TempDir()
 	mono := filepath.Join(dir, "mono.wav")
 	os.WriteFile(mono, wavBytes(wavFloat, 1, 32, 48000, 0, make([]byte, 4<<20)), 0o644)

@@ -1,0 +1,5 @@
+//go:build !race
+
+package iq
+
+const raceEnabled = false
