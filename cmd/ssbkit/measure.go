@@ -283,6 +283,14 @@ func atNoiseNote(atNoise bool) string {
 	return ""
 }
 
+// otherSideband returns the sideband opposite to side (upper or lower).
+func otherSideband(side string) string {
+	if side == spectral.Upper {
+		return spectral.Lower
+	}
+	return spectral.Upper
+}
+
 func writeMeasureText(w io.Writer, in string, meta iq.Meta, r *spectral.Result, imb iq.Imbalance) error {
 	p := func(format string, a ...any) { fmt.Fprintf(w, format, a...) }
 	p("%s: %.0f S/s, %d samples (%.2f s)", in, r.RateHz, r.Samples, float64(r.Samples)/r.RateHz)
@@ -314,6 +322,13 @@ func writeMeasureText(w io.Writer, in string, meta iq.Meta, r *spectral.Result, 
 	default:
 		p("  suppression         %8.2f dB     %s (expect ≥ %d dB)\n", r.SuppressionDB,
 			verdict(r.SuppressionDB >= goodSuppressionDB, r.SuppressionDB >= fairSuppressionDB), goodSuppressionDB)
+	}
+	if !am && r.SuppressionDB < 0 {
+		// Only a forced --sideband can pick the weaker side (auto takes
+		// the stronger): the figures above then describe the wrong one.
+		// AM has two equal sidebands: no hint.
+		p("  hint: the %s sideband is %.2f dB stronger: measure it with --sideband %s (or auto)\n",
+			otherSideband(r.Sideband), -r.SuppressionDB, otherSideband(r.Sideband))
 	}
 	pepNote := "ok"
 	switch {

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/binary"
 	"encoding/json"
+	"fmt"
 	"math"
 	"math/cmplx"
 	"math/rand/v2"
@@ -278,4 +279,49 @@ func TestMeasureImbalance(t *testing.T) {
 		t.Errorf("iq_phase_imbalance_deg %.3f, want %.1f", m["iq_phase_imbalance_deg"], phiDeg)
 	}
 	t.Logf("IRR %.2f dB (want %.2f), gain %.3f dB, phase %.3f°", m["image_rejection_db"], wantIRR, m["iq_gain_imbalance_db"], m["iq_phase_imbalance_deg"])
+}
+
+func TestMeasureWeakSidebandHint(t *testing.T) {
+	// A USB tone at +1000 Hz with its image 30 dB down at −1000 Hz: forced
+	// to the lower sideband, the text report measures the weak side
+	// (suppression −30 dB) and says the upper one is 30 dB stronger (the
+	// level placed; 0.5 dB tolerance as in TestMeasureJSONKeys). Auto and
+	// upper need no hint, nor does AM (equal sidebands round a carrier).
+	const (
+		rate  = 48000.0
+		a     = 0.3
+		tolDB = 0.5
+	)
+	dir := t.TempDir()
+	usb := writeCF32(t, dir, "usb.cf32", 1<<16, rate, 1e-9, tone{1000, a}, tone{-1000, dbAmp(a, -30)})
+	am := writeCF32(t, dir, "am.cf32", 1<<16, rate, 1e-9, tone{0, a}, tone{1000, a / 4}, tone{-1000, a / 4})
+	for _, tc := range []struct {
+		in, side string
+		hint     bool
+	}{
+		{usb, "lower", true},
+		{usb, "upper", false},
+		{usb, "auto", false},
+		{am, "lower", false},
+	} {
+		code, out, errs := runCmd(t, "measure", tc.in, "--rate", "48k", "--sideband", tc.side)
+		if code != exitOK {
+			t.Fatalf("%s --sideband %s: exit %d: %s", filepath.Base(tc.in), tc.side, code, errs)
+		}
+		i := strings.Index(out, "hint: the upper sideband is ")
+		if (i >= 0) != tc.hint {
+			t.Errorf("%s --sideband %s: hint shown %v, want %v:\n%s", filepath.Base(tc.in), tc.side, i >= 0, tc.hint, out)
+			continue
+		}
+		if !tc.hint {
+			continue
+		}
+		var db float64
+		if _, err := fmt.Sscanf(out[i:], "hint: the upper sideband is %f dB stronger: measure it with --sideband upper", &db); err != nil {
+			t.Fatalf("hint line: %v in %q", err, out[i:])
+		}
+		if math.Abs(db-30) > tolDB {
+			t.Errorf("hint says %.2f dB stronger, want 30 ± %g", db, tolDB)
+		}
+	}
 }
