@@ -2,7 +2,6 @@ package main
 
 import (
 	"encoding/json"
-	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -276,7 +275,11 @@ func runTx(e *env, args []string) error {
 	sv.Flush()
 	cfg.Levels = sv.Levels()
 	if cfg.Levels.Peak == 0 || cfg.Levels.EnvelopePeak == 0 {
-		return errors.New("the audio is silent within the pass band")
+		// Test tones lie in the band (checked above): only a file is silent.
+		if cfg.BandHigh == 0 {
+			return fmt.Errorf("%s: the audio is silent", input)
+		}
+		return fmt.Errorf("%s: the audio is silent within the pass band %g:%g Hz (see --band)", input, cfg.BandLow, cfg.BandHigh)
 	}
 
 	// Gain: fixed, or the peak envelope normalised.
@@ -329,8 +332,10 @@ func runTx(e *env, args []string) error {
 		}
 	}
 	comment := fmt.Sprintf("ssbkit tx: %s (%s), carrier at %+g Hz from centre", strings.ToUpper(cfg.Mode), emission, cfg.Offset)
+	var predictedDB float64 // the splitter's opposite-sideband suppression over the band
 	if sp := m.Splitter(); sp != nil {
 		a := hilbert.Analyze(sp, lo, hi)
+		predictedDB = a.SuppressionMinDB
 		s := sp.Spec()
 		l := s.Taps
 		if s.Design == "allpass" {
@@ -435,9 +440,7 @@ func runTx(e *env, args []string) error {
 	rep.PEPdBFS = 10 * math.Log10(pep)
 	rep.AverageDBFS = 10 * math.Log10(lv.Energy()/math.Max(1, float64(written)))
 	rep.PEPToAverageDB = rep.PEPdBFS - rep.AverageDBFS
-	if sp := m.Splitter(); sp != nil {
-		rep.SuppressionDB = math.Round(10*hilbert.Analyze(sp, lo, hi).SuppressionMinDB) / 10
-	}
+	rep.SuppressionDB = math.Round(10*predictedDB) / 10
 	if *asJSON {
 		enc := json.NewEncoder(e.stdout)
 		enc.SetIndent("", "  ")

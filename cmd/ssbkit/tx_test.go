@@ -149,6 +149,8 @@ func TestTxBadInput(t *testing.T) {
 	os.WriteFile(notWAV, []byte("plain text, not audio"), 0o644)
 	empty := filepath.Join(dir, "empty.wav")
 	os.WriteFile(empty, monoWAV16(8000, 0, 0), 0o644)
+	silent := filepath.Join(dir, "silent.wav") // 1 s of zeros: a 0 Hz "tone"
+	os.WriteFile(silent, monoWAV16(8000, 8000, 0), 0o644)
 	out := filepath.Join(dir, "o.cf32")
 	for _, c := range []struct {
 		args []string
@@ -158,6 +160,8 @@ func TestTxBadInput(t *testing.T) {
 		{[]string{notWAV}, exitFailure, "not a WAV"},
 		{[]string{empty}, exitFailure, "no audio samples"},
 		{[]string{filepath.Join(dir, "missing.wav")}, exitFailure, "missing.wav"},
+		{[]string{silent}, exitFailure, silent + ": the audio is silent within the pass band 300:2700 Hz"},
+		{[]string{silent, "--band", "off"}, exitFailure, silent + ": the audio is silent"},
 		{[]string{"--tone", "3500"}, exitUsage, "outside the pass band"},
 		{[]string{"--tone", "30k", "--band", "off", "--rate", "48k"}, exitUsage, "above half"},
 		{[]string{"--tone", "1k", "--offset", "23k"}, exitUsage, "Nyquist"},
