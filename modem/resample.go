@@ -246,13 +246,11 @@ type polyState struct {
 	up, down, k int
 	ph          []float32
 	p, j        int
-	delay       float64 // output samples
 }
 
 func newPolyState(s stagePlan) polyState {
 	ph, k := polyphase(s.taps, s.up)
-	return polyState{up: s.up, down: s.down, k: k, ph: ph,
-		delay: float64(len(s.taps)-1) / 2 / float64(s.down)}
+	return polyState{up: s.up, down: s.down, k: k, ph: ph}
 }
 
 // maxOut bounds the outputs for n inputs: ⌈n·up/down⌉ + 1.
@@ -262,6 +260,12 @@ func (s *polyState) maxOut(n int) int { return (n*s.up+s.down-1)/s.down + 1 }
 type cstage struct {
 	polyState
 	buf []complex64
+}
+
+// init sets the stage to ps with history for chunks of n inputs.
+func (s *cstage) init(ps polyState, n int) {
+	s.polyState = ps
+	s.buf = make([]complex64, ps.k-1, ps.k-1+n)
 }
 
 func (s *cstage) reset() {
@@ -351,6 +355,12 @@ type rstage struct {
 	buf []float32
 }
 
+// init sets the stage to ps with history for chunks of n inputs.
+func (s *rstage) init(ps polyState, n int) {
+	s.polyState = ps
+	s.buf = make([]float32, ps.k-1, ps.k-1+n)
+}
+
 func (s *rstage) reset() {
 	s.p, s.j = 0, 0
 	clear(s.buf[:s.k-1])
@@ -413,7 +423,6 @@ func (s *rstage) process(dst, src []float32) []float32 {
 // filter, decimate-by-M with a Kaiser-window low-pass prototype. The
 // polyphase loop is hand-written: gonum has no resampler.
 type Resampler struct {
-	spec    ResamplerSpec
 	l, m    int
 	stages  []cstage
 	scratch [][]complex64
@@ -434,18 +443,8 @@ func NewResamplerSpec(spec ResamplerSpec) (*Resampler, error) {
 	if err != nil {
 		return nil, err
 	}
-	r := &Resampler{spec: spec, l: l, m: m}
-	n := resampleChunk
-	for i, p := range plans {
-		st := cstage{polyState: newPolyState(p)}
-		st.buf = make([]complex64, st.k-1, st.k-1+n)
-		n = st.maxOut(n)
-		if i < len(plans)-1 {
-			r.scratch = append(r.scratch, make([]complex64, 0, n))
-		}
-		r.stages = append(r.stages, st)
-	}
-	r.delay = chainDelay(plans, spec.OutRate)
+	r := &Resampler{l: l, m: m, delay: chainDelay(plans, spec.OutRate)}
+	r.stages, r.scratch = newChain[complex64, cstage](plans)
 	return r, nil
 }
 
@@ -504,9 +503,27 @@ func (r *Resampler) Process(dst, src []complex64) []complex64 {
 // or *rstage, on complex or real samples T.
 type stage[T float32 | complex64, S any] interface {
 	*S
+	init(ps polyState, n int)
 	process(dst, src []T) []T
 	maxOut(n int) int
 	reset()
+}
+
+// newChain builds the stages of plans for chunks of resampleChunk inputs,
+// with a scratch slice after every stage but the last for its outputs.
+func newChain[T float32 | complex64, S any, P stage[T, S]](plans []stagePlan) ([]S, [][]T) {
+	stages := make([]S, len(plans))
+	var scratch [][]T
+	n := resampleChunk
+	for i, p := range plans {
+		st := P(&stages[i])
+		st.init(newPolyState(p), n)
+		n = st.maxOut(n)
+		if i < len(plans)-1 {
+			scratch = append(scratch, make([]T, 0, n))
+		}
+	}
+	return stages, scratch
 }
 
 // chainMaxOut bounds the outputs of the stages for n inputs.
@@ -553,7 +570,6 @@ func chainProcess[T float32 | complex64, S any, P stage[T, S]](stages []S, scrat
 
 // RealResampler is the Resampler for real samples.
 type RealResampler struct {
-	spec    ResamplerSpec
 	l, m    int
 	stages  []rstage
 	scratch [][]float32
@@ -572,18 +588,8 @@ func NewRealResamplerSpec(spec ResamplerSpec) (*RealResampler, error) {
 	if err != nil {
 		return nil, err
 	}
-	r := &RealResampler{spec: spec, l: l, m: m}
-	n := resampleChunk
-	for i, p := range plans {
-		st := rstage{polyState: newPolyState(p)}
-		st.buf = make([]float32, st.k-1, st.k-1+n)
-		n = st.maxOut(n)
-		if i < len(plans)-1 {
-			r.scratch = append(r.scratch, make([]float32, 0, n))
-		}
-		r.stages = append(r.stages, st)
-	}
-	r.delay = chainDelay(plans, spec.OutRate)
+	r := &RealResampler{l: l, m: m, delay: chainDelay(plans, spec.OutRate)}
+	r.stages, r.scratch = newChain[float32, rstage](plans)
 	return r, nil
 }
 

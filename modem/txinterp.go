@@ -229,8 +229,8 @@ func newOffsetResampler(spec ResamplerSpec, offset float64) (*offsetResampler, e
 		if p.down == 1 && p.up >= 2 {
 			st = newMixInterp(p, 0)
 		} else {
-			cs := &cstage{polyState: newPolyState(p)}
-			cs.buf = make([]complex64, cs.k-1, cs.k-1+n)
+			cs := new(cstage)
+			cs.init(newPolyState(p), n)
 			st = cs
 		}
 		n = st.maxOut(n)
