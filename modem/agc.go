@@ -87,7 +87,6 @@ const (
 // peak has been seen for five time constants, and turned down to within
 // 0.7 % of the target, when it leaves the delay line.
 type AGC struct {
-	t            AGCTiming
 	aAttack      float64 // one-pole coefficient of the attack
 	decay        float64 // per-sample factor of the decay
 	hangN, hangC int
@@ -109,7 +108,7 @@ func NewAGC(t AGCTiming, rate float64) *AGC {
 	if !(t.Attack > 0) || !(t.Decay > 0) {
 		panic("modem: AGC attack and decay must be positive")
 	}
-	a := &AGC{t: t,
+	a := &AGC{
 		aAttack: 1 - math.Exp(-1/(t.Attack*rate)),
 		decay:   math.Pow(10, -t.Decay/20/rate),
 		hangN:   int(t.Hang * rate),

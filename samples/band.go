@@ -160,7 +160,6 @@ func (b *BandSignal) Read(dst []complex64) (int, error) {
 // stationGen makes one station's complex baseband at the capture rate.
 type stationGen struct {
 	st    Station
-	rate  float64
 	total float64 // samples in the capture, for the drift
 
 	voice *Voice
@@ -180,7 +179,7 @@ type stationGen struct {
 const chunk = 256 // audio samples per modulation step
 
 func newStationGen(st Station, cfg BandConfig) (*stationGen, error) {
-	g := &stationGen{st: st, rate: cfg.Rate, total: cfg.Seconds * cfg.Rate}
+	g := &stationGen{st: st, total: cfg.Seconds * cfg.Rate}
 	g.osc = modem.NewOscillator(st.OffsetHz, cfg.Rate)
 	level := math.Pow(10, st.LevelDBFS/20)
 	if st.Mode == "carrier" {
