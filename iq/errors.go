@@ -11,6 +11,8 @@ type FormatError struct {
 	Msg    string
 }
 
+// Error returns "file: byte offset: message", "input" standing for an
+// unnamed file and the offset left out when it is negative.
 func (e *FormatError) Error() string {
 	where := e.File
 	if where == "" {
@@ -29,6 +31,7 @@ type UnsupportedError struct {
 	What string
 }
 
+// Error returns "file: unsupported what".
 func (e *UnsupportedError) Error() string {
 	if e.File == "" {
 		return "unsupported " + e.What
