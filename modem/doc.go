@@ -54,9 +54,11 @@
 // few taps. The planner tries the rational stage first (upsampling) or last
 // (downsampling) with every split of the integer remainder into at most two
 // factors and keeps the chain with the fewest multiply-adds per second;
-// 8 kHz → 2.4 MHz with P = 2.7 kHz becomes ×4 then ×75. Interpolation
-// stages compute two phases per pass over the input window (shared loads)
-// with the taps of a phase padded to a multiple of four.
+// 8 kHz → 2.4 MHz with P = 2.7 kHz becomes ×4 then ×75. Resampler and
+// RealResampler run the same chain code on complex and real samples. The
+// taps of a phase are padded to a multiple of four (four independent sums
+// per pass); complex interpolation stages compute two phases per pass over
+// the input window, so the two share its loads.
 //
 // # Transmit chain
 //
@@ -87,9 +89,11 @@
 // mixed to the offset. Where the last stage is an integer interpolation and
 // the CPU has AVX2/FMA, the mixer is folded into that stage: its taps become
 // h[l]·e^{jωl} and its input is pre-mixed at the lower rate with step U·ω,
-// which gives the same carrier phase at every output as mixing afterwards. Survey measures P and E in a first pass (8×
-// interpolated so that peaks between samples count), for the depth, the
-// carrier and peak normalisation.
+// which gives the same carrier phase at every output as mixing afterwards;
+// without the kernel the plain loop would be slower than real taps and a
+// mixer, so the chain mixes after the Resampler. Survey measures P and E
+// in a first pass (8× interpolated so that peaks between samples count),
+// for the depth, the carrier and peak normalisation.
 //
 // Delay reports the whole chain's delay in output samples; a caller that
 // drops the first round(Delay) samples to align I/Q and audio sets the
@@ -98,16 +102,24 @@
 //
 // # Receive chain
 //
-// Channel tunes one station out of a capture: a first stage decimates with
-// the tuning mixer folded into complex taps (ShiftDecimator; a comb-shaped
-// low-pass whose nulls fall on the aliases that would land in the channel),
-// further Kaiser decimators planned by PlanChannel keep every alias into the
-// channel at least 80 dB down, an integer interpolator or the Resampler
-// reaches the audio rate, and the channel filter (a Kaiser low-pass on the
-// channel shifted so the audio band sits on 0 Hz, which makes it a complex
-// band-pass) selects one sideband. Demodulators: SSBDemod (product
-// detection: the real part), AMDemod (envelope, mean removed), SAMDemod
-// (a second-order carrier-tracking loop that reports lock), then AGC.
+// Channel tunes one station out of a capture:
+//
+//	ShiftDecimator → Decimators → channel low-pass
+//	  → Interpolator or Resampler → demodulator → AGC or fixed gain
+//
+// The first stage mixes the channel centre to 0 Hz (for SSB the carrier
+// plus the middle of the audio band, ±(Low + High)/2) and decimates in
+// one, the mixer folded into complex taps (ShiftDecimator; a comb-shaped
+// low-pass whose nulls fall on the aliases that would land in the
+// channel). Further Kaiser decimators planned by PlanChannel keep every
+// alias into the channel at least RxConfig.AttenDB (80 dB by default)
+// down. At the work rate the channel filter, a Kaiser low-pass of half the
+// channel's width, selects one sideband: on the capture it is a complex
+// band-pass over Low…High on one side of the carrier. An integer
+// interpolator or the Resampler then reaches the audio rate.
+// Demodulators: SSBDemod (product detection: mix back by the centre
+// shift, compute the real part only), AMDemod (envelope, mean removed),
+// SAMDemod (a second-order carrier-tracking loop that reports lock).
 // Receiver reads a capture once and runs several channels concurrently.
 // Narrower reuses the same stages to bring one frequency down to a narrow
 // rate for analysis (package spectral's measurement).
