@@ -134,8 +134,8 @@ func decodeCF32Go(dst []complex64, b []byte) (clipped, nonfinite int) {
 // words (one sample each) for the clip count and the non-finite test,
 // then a copy (memmove). A block holding NaN or ±Inf takes the
 // reference loop. The clip count is exact but taken in a second pass
-// only over the 256-sample pieces that reach full scale. Plain Go rather than a library: no package offers
-// this scan.
+// only over the 256-sample pieces that reach full scale. Plain Go rather
+// than a library: no package offers this scan.
 //
 // For each 32-bit half h of a word, with m = h & 0x7fffffff its
 // magnitude bits, m + 0x40800000 reaches bit 31 exactly when m ≥

@@ -25,11 +25,15 @@
 // same bits: widen to int32, convert, and scale — v·2⁻⁷ and v·2⁻¹⁵ are
 // exact, and (v − 127.5)/127.5 is a multiply by the reciprocal with one
 // FMA correction step, which gives the table's correctly rounded
-// quotient for all 256 codes (checked exhaustively). cf32_le is a copy with a comparison of the
-// magnitude bits for |v| ≥ 1 and for NaN/±Inf; a block holding such a
-// value is decoded again by the reference loop. Clipped samples are
+// quotient for all 256 codes (checked exhaustively). Clipped samples are
 // counted from byte masks of the rail codes and popcnt, at no cost worth
-// measuring. Build with -tags purego to use the reference loops only.
+// measuring. cf32_le is a copy with an integer comparison of the
+// magnitude bits for |v| ≥ 1 and for NaN/±Inf (IEEE Std 754-2019, 3.4:
+// non-negative binary32 values order as their bit patterns): by the
+// kernel, or elsewhere by a plain Go scan of 64-bit words, one sample
+// each; a block holding NaN or ±Inf is decoded again by the reference
+// loop. Build with -tags purego to run without the kernels (the integer
+// formats then take the reference loops, cf32_le the word scan).
 //
 // # Containers
 //
