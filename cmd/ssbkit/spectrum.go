@@ -26,7 +26,9 @@ axis is absolute when the centre frequency is known (SigMF metadata or
 quantile of the smoothed spectrum (but no lower than 100 dB under its
 strongest bin, so that a noiseless synthetic file does not list every
 rounding spur), bins 8 dB (--threshold) above it are
-occupied, nearby runs are grouped, and each group gets a kind from its
+occupied, nearby runs are grouped, each group's edges leave out the
+window's skirts of its stronger bins (so a clean tone is listed about
+two bins wide), and each group gets a kind from its
 shape (usb, lsb, am, carrier, unknown). offset_hz is the estimated carrier;
 for SSB it sits 300 Hz (the usual low audio edge, common practice) outside
 the steep edge of the voice spectrum. Frequencies are offsets from the

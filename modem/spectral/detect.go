@@ -158,14 +158,18 @@ func detectionFloor(psd, sm []float64, rate float64, opt DetectOptions) float64 
 }
 
 // Detect finds the signals in a centred power spectral density (as
-// returned by Accumulator.PSD) of a capture at rate Hz. The steps:
+// returned by Accumulator.PSD with its default Hann window) of a capture
+// at rate Hz. The steps:
 //
 //  1. the noise floor N₀ is NoiseFloor's low quantile of the smoothed PSD,
 //     but at least the strongest smoothed bin less DynamicRangeDB
 //     (DetectionFloor);
 //  2. bins of the smoothed PSD above N₀·10^(ThresholdDB/10) are occupied;
 //     runs closer than MergeHz are joined, and each group's edges are
-//     pulled in to the outermost raw bins above the threshold;
+//     pulled in to the outermost raw bins above the threshold and above
+//     the Hann window's skirts of the group's stronger bins by the same
+//     threshold (inSkirt), so a clean line is listed with the width of
+//     its main lobe, not of its leakage;
 //  3. each group gets a kind from its shape: narrower than NarrowHz is a
 //     carrier; a strong narrow peak (10 dB over the group's median) near
 //     the middle with sidebands on both sides, each beyond ±NarrowHz/2 of
@@ -192,7 +196,8 @@ func Detect(psd []float64, rate float64, opt DetectOptions) []Signal {
 		// an all-zero capture has nothing in it
 		return nil
 	}
-	thr := floor * math.Pow(10, opt.ThresholdDB/10)
+	thrRatio := math.Pow(10, opt.ThresholdDB/10)
+	thr := floor * thrRatio
 	// runs of occupied bins
 	type run struct{ a, b int }
 	var runs []run
@@ -227,6 +232,13 @@ func Detect(psd []float64, rate float64, opt DetectOptions) []Signal {
 			a++
 		}
 		for b > a && psd[b] <= thr {
+			b--
+		}
+		// and past the Hann skirts of the group's stronger bins
+		for a < b && inSkirt(psd, a, a, b, thrRatio) {
+			a++
+		}
+		for b > a && inSkirt(psd, b, a, b, thrRatio) {
 			b--
 		}
 		s := Signal{LowHz: freq(float64(a) - 0.5), HighHz: freq(float64(b) + 0.5)}
@@ -352,4 +364,39 @@ func refinePeak(psd []float64, j int, bin float64, freq func(float64) float64) f
 		}
 	}
 	return f
+}
+
+// skirtReach is how far, in bins, inSkirt looks for a stronger bin: the
+// Hann envelope there is 1/(π·63.5·(63.5²−1)) ≈ −118 dB, beyond the
+// default 100 dB dynamic range plus threshold.
+const skirtReach = 64
+
+// hannSkirt returns a bound on the power leaked by a Hann window, relative
+// to its peak, at x ≥ 1.5 bins from a line: the window's transform
+// sin(πx)/(πx(1−x²)) (Harris, Proc. IEEE 66(1), 1978, the cos² window as
+// three shifted Dirichlet kernels, large-N form) is bounded by
+// 1/(πx(x²−1)) since |sin| ≤ 1.
+func hannSkirt(x float64) float64 {
+	e := 1 / (math.Pi * x * (x*x - 1))
+	return e * e
+}
+
+// inSkirt reports whether bin j of psd lies within ratio (the detection
+// threshold) of the Hann leakage of some bin k of [a, b] at least two bins
+// away: psd[j] ≤ ratio·psd[k]·hannSkirt(|j−k|−½). A line falls between
+// bins, so its strongest bin is within half a bin of it and the distance
+// to the line is at least |j−k|−½. Such a bin is explained by the window,
+// not by signal of its own. Welch averages of a Hann window (Accumulator's
+// default) are assumed.
+func inSkirt(psd []float64, j, a, b int, ratio float64) bool {
+	for k := max(a, j-skirtReach); k <= min(b, j+skirtReach); k++ {
+		d := j - k
+		if d < 0 {
+			d = -d
+		}
+		if d >= 2 && psd[j] <= ratio*psd[k]*hannSkirt(float64(d)-0.5) {
+			return true
+		}
+	}
+	return false
 }
