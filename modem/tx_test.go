@@ -204,7 +204,11 @@ func TestTxAM(t *testing.T) {
 	}
 	y, _ := modulateAll(t, TxConfig{Mode: "dsb", AudioRate: 48000, OutRate: 48000, BandLow: 300, BandHigh: 2700}, x, 777)
 	seg := y[4800:43200]
-	if c := 20 * math.Log10(toneLevel(seg, 0, 48000)/toneLevel(seg, 1000, 48000)); c > -100 {
+	// x = g·a has no carrier term at all (package doc): what is measured
+	// at 0 Hz is float32 rounding and the correlation's leakage, far
+	// below this bound (chosen, no published figure).
+	const maxDSBCarrierDB = -100
+	if c := 20 * math.Log10(toneLevel(seg, 0, 48000)/toneLevel(seg, 1000, 48000)); c > maxDSBCarrierDB {
 		t.Errorf("dsb: carrier at %.1f dB re sideband, want suppressed", c)
 	}
 }
