@@ -117,23 +117,12 @@ func runMeasure(e *env, args []string) error {
 	}
 	var stats iq.Stats
 	bar := newProgress(e, *quiet, "measure", meta.Samples)
-	ra := newReadAhead(src, 1<<16, 4)
-	defer ra.stop()
-	for {
-		x, err := ra.next()
+	if err := readAll(src, bar, func(x []complex64) {
 		m.Add(x)
 		stats.Add(x)
-		bar.Add(len(x))
-		ra.release(x)
-		if err == io.EOF {
-			break
-		}
-		if err != nil {
-			bar.Done()
-			return err
-		}
+	}); err != nil {
+		return err
 	}
-	bar.Done()
 	r, err := m.Result()
 	if err != nil {
 		if errors.Is(err, spectral.ErrNoSignal) {

@@ -115,24 +115,13 @@ func runSpectrum(e *env, args []string) error {
 	wf := spectral.NewWaterfall(n, meta.Rate, *rows, min(n, 1024), spectral.Options{Hop: hop, Workers: runtime.GOMAXPROCS(0)})
 	defer wf.Close()
 	bar := newProgress(e, *quiet, "spectrum", meta.Samples)
-	ra := newReadAhead(src, 1<<16, 4)
-	defer ra.stop()
 	var total int64
-	for {
-		x, err := ra.next()
+	if err := readAll(src, bar, func(x []complex64) {
 		wf.Add(x)
 		total += int64(len(x))
-		bar.Add(len(x))
-		ra.release(x)
-		if err == io.EOF {
-			break
-		}
-		if err != nil {
-			bar.Done()
-			return err
-		}
+	}); err != nil {
+		return err
 	}
-	bar.Done()
 	acc := wf.Accumulator()
 	if acc.Segments() == 0 {
 		return fmt.Errorf("%s: %d samples are too few for a resolution of %g Hz, which needs %d: use a coarser --resolution",
@@ -239,6 +228,29 @@ func (r *readAhead) release(x []complex64) { r.free <- x[:cap(x)] }
 func (r *readAhead) stop() {
 	close(r.done)
 	<-r.exited
+}
+
+// readAll reads src to the end with a read-ahead goroutine, handing each
+// block to f (on this goroutine) and counting it on bar, which it closes.
+// It returns the first read error other than io.EOF.
+func readAll(src interface {
+	Read([]complex64) (int, error)
+}, bar *progress, f func([]complex64)) error {
+	defer bar.Done()
+	ra := newReadAhead(src, 1<<16, 4)
+	defer ra.stop()
+	for {
+		x, err := ra.next()
+		f(x)
+		bar.Add(len(x))
+		ra.release(x)
+		if err == io.EOF {
+			return nil
+		}
+		if err != nil {
+			return err
+		}
+	}
 }
 
 // prevPow2 returns the largest power of two ≤ n (n ≥ 1).
