@@ -32,6 +32,8 @@ func TestNarrowerToneAndAliases(t *testing.T) {
 		atten   = 80.0
 		tolDB   = 0.02
 		tolRad  = 1e-3
+		// aliasMarginDB is what the alias may exceed −atten by
+		aliasMarginDB = 2
 	)
 	nr, err := NewNarrower(rate, freq, 48000, protect, atten)
 	if err != nil {
@@ -59,8 +61,8 @@ func TestNarrowerToneAndAliases(t *testing.T) {
 	for _, v := range y[nr.Settle():] {
 		peak = math.Max(peak, cmplx.Abs(complex128(v)))
 	}
-	if db := 20 * math.Log10(peak/0.5); db > -atten+2 {
-		t.Errorf("alias into the protected band at %.1f dB, want ≤ %g", db, -atten+2)
+	if db := 20 * math.Log10(peak/0.5); db > -atten+aliasMarginDB {
+		t.Errorf("alias into the protected band at %.1f dB, want ≤ %g", db, -atten+aliasMarginDB)
 	}
 }
 
