@@ -2,6 +2,7 @@ package main
 
 import (
 	"fmt"
+	"io"
 	"strings"
 
 	"github.com/spf13/pflag"
@@ -12,7 +13,9 @@ import (
 // flag list.
 func newFlagSet(e *env, name, usage, examples string) *pflag.FlagSet {
 	fs := pflag.NewFlagSet(name, pflag.ContinueOnError)
-	fs.SetOutput(e.stderr)
+	// pflag would print its own usage and errors there; parseFlags
+	// reports them as one line instead, and Usage writes to stdout.
+	fs.SetOutput(io.Discard)
 	fs.SortFlags = false
 	fs.Usage = func() {
 		w := e.stdout
@@ -33,7 +36,6 @@ func parseFlags(fs *pflag.FlagSet, args []string) error {
 	// Parse so help is printed once, to stdout, and errors stay one line.
 	usage := fs.Usage
 	fs.Usage = func() {}
-	fs.SetOutput(discard{})
 	err := fs.Parse(args)
 	fs.Usage = usage
 	if err == pflag.ErrHelp {
@@ -45,7 +47,3 @@ func parseFlags(fs *pflag.FlagSet, args []string) error {
 	}
 	return nil
 }
-
-type discard struct{}
-
-func (discard) Write(p []byte) (int, error) { return len(p), nil }

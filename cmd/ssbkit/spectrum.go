@@ -61,8 +61,6 @@ func runSpectrum(e *env, args []string) error {
 	rows := fs.Int("rows", 300, "about this many waterfall rows (between it and twice it)")
 	thr := fs.Float64("threshold", 8, "detection threshold in dB above the noise floor")
 	fast := fs.Bool("fast", false, "sample at most 16 M samples' worth of segments spread over a long capture instead of averaging all")
-	fs.Bool("full", true, "average every segment (the default)")
-	_ = fs.MarkDeprecated("full", "the full average is the default now")
 	width := fs.Int("width", 1200, "picture width in points")
 	height := fs.Int("height", 900, "picture height in points")
 	quiet := fs.BoolP("quiet", "q", false, "no progress bar")
