@@ -17,7 +17,8 @@ const splitterExamples = `Prints the response summary of one phase-splitter desi
 the opposite sideband over the band (minimum and mean), wanted-sideband
 ripple, delay and cost, and the suppression at the band edges and centre.
 --coeffs writes the I and Q path coefficients as CSV (header
-path,index,coefficient; one coefficient a row; for allpass the section
+path,index,coefficient; one coefficient a row; for FIR designs index k
+weights x[n−k], the input k samples back; for allpass the section
 coefficients a of (a − z⁻²)/(1 − a·z⁻²), the Q path behind one extra
 sample of delay). --export writes them as Go or C arrays, with a header
 comment giving design, rate, band, delay and suppression, to -o or
@@ -187,7 +188,8 @@ func writeExport(w io.Writer, lang string, s hilbert.Spec, r sweepRow, i, q []fl
 	}
 	if fir {
 		head = append(head,
-			"FIR taps, oldest input first: out[n] = sum_k I[k]*x[n-k] + j*sum_k Q[k]*x[n-k].")
+			"FIR taps in convolution order (k = 0 weights the newest input x[n]):",
+			"out[n] = sum_k I[k]*x[n-k] + j*sum_k Q[k]*x[n-k].")
 	} else {
 		head = append(head,
 			"All-pass sections (a - z^-2)/(1 - a*z^-2) in series, y[n] = a*(x[n] + y[n-2]) - x[n-2];",

@@ -57,7 +57,8 @@ func TestSplitterCoeffsAndExport(t *testing.T) {
 			t.Errorf("%q: want %g", c.line, c.want)
 		}
 	}
-	if !strings.Contains(out, "package splitter") || !strings.Contains(out, "var splitterQ = [7]float64{") || !strings.Contains(out, "Opposite-sideband suppression") {
+	if !strings.Contains(out, "package splitter") || !strings.Contains(out, "var splitterQ = [7]float64{") || !strings.Contains(out, "Opposite-sideband suppression") ||
+		!strings.Contains(out, "k = 0 weights the newest input") {
 		t.Errorf("export:\n%s", out)
 	}
 	if p, _ := os.ReadFile(png); len(p) < 1000 {
