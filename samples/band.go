@@ -37,8 +37,8 @@ type Station struct {
 	// LevelDBFS is the RMS of the signal while it is active (speech:
 	// over its syllables), dBFS. For AM it is the carrier.
 	LevelDBFS float64 `json:"level_dbfs"`
-	LowHz     float64 `json:"low_hz"`  // occupied band at the start, offsets from the centre
-	HighHz    float64 `json:"high_hz"` //
+	LowHz     float64 `json:"low_hz"`  // lower edge of the occupied band at the start, Hz from the centre
+	HighHz    float64 `json:"high_hz"` // upper edge of the same
 	Voice     string  `json:"voice,omitempty"`
 
 	voice VoiceConfig
