@@ -71,7 +71,7 @@ func runTx(e *env, args []string) error {
 	method := fs.String("method", "phasing", "SSB method: phasing, weaver")
 	design := fs.String("design", modem.DefaultSplitterDesign, "phase splitter: "+strings.Join(hilbert.Designs[:7], ", ")+" (with --band off: allpass, 12 sections)")
 	taps := fs.Int("taps", 0, fmt.Sprintf("splitter length: FIR taps (odd), Weaver low-pass taps or FFT block size (default %d; fft 1024)", modem.DefaultSplitterTaps))
-	sections := fs.Int("sections", 0, "all-pass sections of both paths together for --design allpass (default 6; as in sweep)")
+	sections := fs.Int("sections", 0, "all-pass sections of both paths together (default 6; as in sweep); implies --design allpass")
 	band := fs.String("band", "300:2700", "audio pass band LOW:HIGH in Hz, or off")
 	offset := fs.String("offset", "0", "where the (suppressed) carrier sits in the output baseband, Hz")
 	rate := fs.String("rate", "48k", "output I/Q sample rate in Hz")
@@ -153,6 +153,18 @@ func runTx(e *env, args []string) error {
 	}
 	if *design == "weaver" {
 		return usagef("--design weaver: use --method weaver")
+	}
+	// --taps sizes FIR, Weaver and FFT splitters, --sections the all-pass
+	// pair: a length for the other kind would be silently dropped.
+	switch allpass := cfg.Splitter.Design == "allpass"; {
+	case fs.Changed("taps") && fs.Changed("sections"):
+		return usagef("--taps and --sections exclude each other (taps for FIR, Weaver and FFT splitters, sections for allpass)")
+	case fs.Changed("taps") && allpass:
+		return usagef("--taps does not apply to --design allpass (use --sections)")
+	case fs.Changed("sections") && (cfg.Method == "weaver" || fs.Changed("design") && !allpass):
+		return usagef("--sections applies to --design allpass only (use --taps)")
+	case fs.Changed("sections"):
+		cfg.Splitter.Design = "allpass" // --sections alone picks the all-pass pair
 	}
 	if *band != "off" {
 		lo, hi, err := iq.ParseBand(*band)

@@ -173,6 +173,10 @@ func TestTxBadInput(t *testing.T) {
 		{[]string{"--tone", "1k", "--carrier", "3"}, exitUsage, "--carrier"},
 		{[]string{}, exitUsage, "no audio"},
 		{[]string{"--tone", "1k", "--two-tone", "700,1900"}, exitUsage, "exclude"},
+		{[]string{"--tone", "1k", "--design", "allpass", "--taps", "31"}, exitUsage, "--taps does not apply"},
+		{[]string{"--tone", "1k", "--taps", "31", "--sections", "3"}, exitUsage, "exclude"},
+		{[]string{"--tone", "1k", "--design", "kaiser", "--sections", "3"}, exitUsage, "--sections applies"},
+		{[]string{"--tone", "1k", "--method", "weaver", "--sections", "3"}, exitUsage, "--sections applies"},
 	} {
 		args := append([]string{"tx", "-o", out}, c.args...)
 		code, _, stderr := runCmd(t, args...)
@@ -233,5 +237,29 @@ func TestTxStdout(t *testing.T) {
 	seg := x[2400:21600]
 	if g := 20 * math.Log10(cmplx.Abs(toneAt(seg, 1000, 48000))); math.Abs(g) > tolDB {
 		t.Errorf("tone at +1 kHz: %.3f dB, want 0 (unity)", g)
+	}
+}
+
+// TestTxSectionsPickAllpass: --sections alone selects the all-pass pair
+// with that many sections (also without a band, where the default would be
+// 12), as the SigMF description records.
+func TestTxSectionsPickAllpass(t *testing.T) {
+	dir := t.TempDir()
+	for _, c := range []struct {
+		args []string
+		want string
+	}{
+		{[]string{"--sections", "4"}, "splitter allpass 4,"},
+		{[]string{"--sections", "8", "--band", "off"}, "splitter allpass 8,"},
+	} {
+		out := filepath.Join(dir, "s.sigmf-meta")
+		args := append([]string{"tx", "--tone", "1k", "--seconds", "0.1", "-q", "--force", "-o", out}, c.args...)
+		if code, _, errs := runCmd(t, args...); code != exitOK {
+			t.Fatalf("%q: exit %d: %s", c.args, code, errs)
+		}
+		b, err := os.ReadFile(out)
+		if err != nil || !strings.Contains(string(b), c.want) {
+			t.Errorf("%q: metadata lacks %q (%v):\n%s", c.args, c.want, err, b)
+		}
 	}
 }
