@@ -47,7 +47,7 @@ func runSplitter(e *env, args []string) error {
 	force := fs.Bool("force", false, "overwrite existing outputs")
 	design := fs.String("design", "equiripple", "design: "+strings.Join(hilbert.Designs, ", "))
 	taps := fs.Int("taps", 63, "FIR taps (odd), Weaver low-pass taps (odd) or FFT block size")
-	sections := fs.Int("sections", 6, "all-pass sections (one multiply each; total order 2·sections+1)")
+	sections := fs.Int("sections", 6, "all-pass sections (one multiply each; total order 2·sections+1); implies --design allpass")
 	rateS := fs.String("rate", "8000", "sample rate in Hz")
 	bandS := fs.String("band", "300:2700", "audio band LOW:HIGH in Hz")
 	coeffs := fs.String("coeffs", "", "write the coefficients as CSV to this file")
@@ -63,6 +63,17 @@ func runSplitter(e *env, args []string) error {
 	}
 	if !isDesign(*design) {
 		return usagef("--design: unknown design %q (allowed: %s)", *design, strings.Join(hilbert.Designs, ", "))
+	}
+	// As in tx: a length for the other kind of design would be ignored.
+	switch allpass := *design == "allpass"; {
+	case fs.Changed("taps") && fs.Changed("sections"):
+		return usagef("--taps and --sections exclude each other (taps for FIR, Weaver and FFT designs, sections for allpass)")
+	case fs.Changed("taps") && allpass:
+		return usagef("--taps does not apply to --design allpass (use --sections)")
+	case fs.Changed("sections") && fs.Changed("design") && !allpass:
+		return usagef("--sections applies to --design allpass only (use --taps)")
+	case fs.Changed("sections"):
+		*design = "allpass" // --sections alone picks the all-pass pair
 	}
 	if *export != "" && *export != "go" && *export != "c" {
 		return usagef("--export %q: want go or c", *export)

@@ -20,6 +20,10 @@ func TestSplitterSummary(t *testing.T) {
 	if !strings.Contains(out, "min 47.04 dB") {
 		t.Errorf("summary:\n%s", out)
 	}
+	// --sections alone picks the all-pass pair: the same figure.
+	if code, out, _ = runCmd(t, "splitter", "--sections", "3", "--band", "300:3700"); code != exitOK || !strings.Contains(out, "min 47.04 dB") {
+		t.Errorf("--sections 3 alone: exit %d, summary:\n%s", code, out)
+	}
 	code, out, _ = runCmd(t, "splitter", "--json")
 	var j map[string]any
 	if code != exitOK || json.Unmarshal([]byte(out), &j) != nil {
@@ -80,6 +84,9 @@ func TestSplitterBadInput(t *testing.T) {
 		{[]string{"--design", "allpass", "--sections", "99"}, "sections must be 1 to"},
 		{[]string{"--export", "rust"}, "go or c"},
 		{[]string{"--band", "0:2700"}, "0 < LOW"},
+		{[]string{"--design", "allpass", "--taps", "31"}, "--taps does not apply"},
+		{[]string{"--design", "kaiser", "--sections", "3"}, "--sections applies"},
+		{[]string{"--taps", "31", "--sections", "3"}, "exclude"},
 	} {
 		code, _, errs := runCmd(t, append([]string{"splitter"}, c.args...)...)
 		if code != exitUsage || !strings.Contains(errs, c.want) || strings.Count(errs, "\n") != 1 {
