@@ -138,3 +138,20 @@ func FuzzParseLengths(f *testing.F) {
 		}
 	})
 }
+
+// TestSweepSkipWarning: an FFT block below hilbert.MinFFT is skipped with
+// a one-line warning that -q does not silence (DEVELOPERS.md: warnings
+// `ssbkit: cmd: warning: …`); the other lengths still run.
+func TestSweepSkipWarning(t *testing.T) {
+	code, out, errs := runCmd(t, "sweep", "--designs", "fft", "--taps", "3,15", "-q", "--json")
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	if errs != "ssbkit: sweep: warning: fft block size 3 skipped (at least 8)\n" {
+		t.Errorf("stderr %q", errs)
+	}
+	var j struct{ Rows []struct{ Length int } }
+	if err := json.Unmarshal([]byte(out), &j); err != nil || len(j.Rows) != 1 || j.Rows[0].Length != 15 {
+		t.Errorf("rows %+v (%v), want the 15 block only", j.Rows, err)
+	}
+}
