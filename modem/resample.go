@@ -424,7 +424,7 @@ func (s *rstage) process(dst, src []float32) []float32 {
 // polyphase loop is hand-written: gonum has no resampler.
 type Resampler struct {
 	l, m    int
-	stages  []cstage
+	stages  []*cstage
 	scratch [][]complex64
 	delay   float64
 }
@@ -487,10 +487,10 @@ func (r *Resampler) Delay() float64 { return r.delay }
 
 // MaxOut returns the largest number of outputs Process can produce for n
 // inputs.
-func (r *Resampler) MaxOut(n int) int { return chainMaxOut[complex64](r.stages, n) }
+func (r *Resampler) MaxOut(n int) int { return chainMaxOut(r.stages, n) }
 
 // Reset clears the history and the phase.
-func (r *Resampler) Reset() { chainReset[complex64](r.stages) }
+func (r *Resampler) Reset() { chainReset(r.stages) }
 
 // Process resamples src into dst and returns dst[:n], n ≤ MaxOut(len(src)).
 // A nil dst, or one whose capacity is below MaxOut(len(src)), is
@@ -499,52 +499,60 @@ func (r *Resampler) Process(dst, src []complex64) []complex64 {
 	return chainProcess(r.stages, r.scratch, dst, src)
 }
 
-// stage is what the chain functions need of a polyphase stage: *cstage
-// or *rstage, on complex or real samples T.
-type stage[T float32 | complex64, S any] interface {
-	*S
-	init(ps polyState, n int)
+// stage is one stage of a resampler chain on complex or real samples T:
+// a polyphase stage (*cstage, *rstage) or the transmit chain's mixing
+// interpolator (*mixInterp).
+type stage[T float32 | complex64] interface {
+	// process appends the outputs for src to dst, whose capacity must
+	// hold maxOut(len(src)) more, and returns it.
 	process(dst, src []T) []T
 	maxOut(n int) int
 	reset()
 }
 
-// newChain builds the stages of plans for chunks of resampleChunk inputs,
-// with a scratch slice after every stage but the last for its outputs.
-func newChain[T float32 | complex64, S any, P stage[T, S]](plans []stagePlan) ([]S, [][]T) {
-	stages := make([]S, len(plans))
+// newChain builds the polyphase stages of plans (S is cstage or rstage)
+// for chunks of resampleChunk inputs, with a scratch slice after every
+// stage but the last for its outputs.
+func newChain[T float32 | complex64, S any, P interface {
+	*S
+	stage[T]
+	init(ps polyState, n int)
+}](plans []stagePlan) ([]P, [][]T) {
+	stages := make([]P, len(plans))
 	var scratch [][]T
 	n := resampleChunk
 	for i, p := range plans {
-		st := P(&stages[i])
+		st := P(new(S))
 		st.init(newPolyState(p), n)
 		n = st.maxOut(n)
 		if i < len(plans)-1 {
 			scratch = append(scratch, make([]T, 0, n))
 		}
+		stages[i] = st
 	}
 	return stages, scratch
 }
 
 // chainMaxOut bounds the outputs of the stages for n inputs.
-func chainMaxOut[T float32 | complex64, S any, P stage[T, S]](stages []S, n int) int {
-	for i := range stages {
-		n = P(&stages[i]).maxOut(n)
+func chainMaxOut[T float32 | complex64, P stage[T]](stages []P, n int) int {
+	for _, st := range stages {
+		n = st.maxOut(n)
 	}
 	return n
 }
 
 // chainReset resets every stage.
-func chainReset[T float32 | complex64, S any, P stage[T, S]](stages []S) {
-	for i := range stages {
-		P(&stages[i]).reset()
+func chainReset[T float32 | complex64, P stage[T]](stages []P) {
+	for _, st := range stages {
+		st.reset()
 	}
 }
 
-// chainProcess is Process of Resampler and RealResampler: src runs
-// through the stages resampleChunk inputs at a time, each stage but the
-// last writing into its scratch slice; no stages is a copy.
-func chainProcess[T float32 | complex64, S any, P stage[T, S]](stages []S, scratch [][]T, dst, src []T) []T {
+// chainProcess is Process of Resampler, RealResampler and the transmit
+// chain's offsetResampler: src runs through the stages resampleChunk
+// inputs at a time, each stage but the last writing into its scratch
+// slice; no stages is a copy.
+func chainProcess[T float32 | complex64, P stage[T]](stages []P, scratch [][]T, dst, src []T) []T {
 	if len(stages) == 0 {
 		if cap(dst) < len(src) {
 			dst = make([]T, len(src))
@@ -553,17 +561,17 @@ func chainProcess[T float32 | complex64, S any, P stage[T, S]](stages []S, scrat
 		copy(dst, src)
 		return dst
 	}
-	if m := chainMaxOut[T, S, P](stages, len(src)); cap(dst) < m {
+	if m := chainMaxOut(stages, len(src)); cap(dst) < m {
 		dst = make([]T, 0, m)
 	}
 	dst = dst[:0]
 	last := len(stages) - 1
 	for off := 0; off < len(src); off += resampleChunk {
 		x := src[off : off+min(resampleChunk, len(src)-off)]
-		for i := range last {
-			x = P(&stages[i]).process(scratch[i][:0], x)
+		for i, st := range stages[:last] {
+			x = st.process(scratch[i][:0], x)
 		}
-		dst = P(&stages[last]).process(dst, x)
+		dst = stages[last].process(dst, x)
 	}
 	return dst
 }
@@ -571,7 +579,7 @@ func chainProcess[T float32 | complex64, S any, P stage[T, S]](stages []S, scrat
 // RealResampler is the Resampler for real samples.
 type RealResampler struct {
 	l, m    int
-	stages  []rstage
+	stages  []*rstage
 	scratch [][]float32
 	delay   float64
 }
@@ -601,10 +609,10 @@ func (r *RealResampler) Delay() float64 { return r.delay }
 
 // MaxOut returns the largest number of outputs Process can produce for n
 // inputs.
-func (r *RealResampler) MaxOut(n int) int { return chainMaxOut[float32](r.stages, n) }
+func (r *RealResampler) MaxOut(n int) int { return chainMaxOut(r.stages, n) }
 
 // Reset clears the history and the phase.
-func (r *RealResampler) Reset() { chainReset[float32](r.stages) }
+func (r *RealResampler) Reset() { chainReset(r.stages) }
 
 // Process resamples src into dst and returns dst[:n]; see
 // Resampler.Process.

@@ -192,19 +192,12 @@ func mixInterpGo(dst, win []complex64, taps []float32, n, k, groups, up int, cpl
 	}
 }
 
-// chainStage is one stage of an offsetResampler.
-type chainStage interface {
-	process(dst, src []complex64) []complex64
-	reset()
-	maxOut(n int) int
-}
-
 // offsetResampler is the transmit chain's resampler when its last stage is
 // an integer interpolation: the earlier stages as in Resampler (integer
 // interpolations also by mixInterp, with real taps), then a mixInterp
 // carrying the offset mixer.
 type offsetResampler struct {
-	pre     []chainStage
+	stages  []stage[complex64] // the last is last
 	scratch [][]complex64
 	last    *mixInterp
 	delay   float64
@@ -225,7 +218,7 @@ func newOffsetResampler(spec ResamplerSpec, offset float64) (*offsetResampler, e
 	n := resampleChunk
 	last := len(plans) - 1
 	for _, p := range plans[:last] {
-		var st chainStage
+		var st stage[complex64]
 		if p.down == 1 && p.up >= 2 {
 			st = newMixInterp(p, 0)
 		} else {
@@ -235,43 +228,25 @@ func newOffsetResampler(spec ResamplerSpec, offset float64) (*offsetResampler, e
 		}
 		n = st.maxOut(n)
 		r.scratch = append(r.scratch, make([]complex64, 0, n))
-		r.pre = append(r.pre, st)
+		r.stages = append(r.stages, st)
 	}
 	r.last = newMixInterp(plans[last], offset)
+	r.stages = append(r.stages, r.last)
 	return r, nil
 }
 
 // MaxOut returns the most outputs Process gives for n inputs.
-func (r *offsetResampler) MaxOut(n int) int {
-	for _, st := range r.pre {
-		n = st.maxOut(n)
-	}
-	return r.last.maxOut(n)
-}
+func (r *offsetResampler) MaxOut(n int) int { return chainMaxOut(r.stages, n) }
 
 // Delay returns the group delay in output samples, as Resampler.Delay.
 func (r *offsetResampler) Delay() float64 { return r.delay }
 
-func (r *offsetResampler) Reset() {
-	for _, st := range r.pre {
-		st.reset()
-	}
-	r.last.reset()
-}
+// Reset clears the history of every stage and returns the mixer to the
+// phase last set (0 unless setPhase).
+func (r *offsetResampler) Reset() { chainReset(r.stages) }
 
 // Process resamples and mixes src into dst[:0] and returns it; a nil or
 // short dst is allocated.
 func (r *offsetResampler) Process(dst, src []complex64) []complex64 {
-	if need := r.MaxOut(len(src)); cap(dst) < need {
-		dst = make([]complex64, 0, need)
-	}
-	dst = dst[:0]
-	for off := 0; off < len(src); off += resampleChunk {
-		x := src[off : off+min(resampleChunk, len(src)-off)]
-		for i, st := range r.pre {
-			x = st.process(r.scratch[i][:0], x)
-		}
-		dst = r.last.process(dst, x)
-	}
-	return dst
+	return chainProcess(r.stages, r.scratch, dst, src)
 }

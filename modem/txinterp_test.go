@@ -175,7 +175,7 @@ func TestOffsetResamplerTone(t *testing.T) {
 	x := NewOscillator(f, in).Generate(make([]complex64, 800))
 	y := r.Process(nil, x)
 	d := r.delay
-	tol := float64(2*(len(r.pre)+1)+1)*math.Pow(10, -atten/20) + 2e-6
+	tol := float64(2*(len(r.stages))+1)*math.Pow(10, -atten/20) + 2e-6
 	var worst float64
 	for m := int(2*d) + 10; m < len(y)-10; m++ {
 		// baseband tone delayed by D, then the mixer at output m
