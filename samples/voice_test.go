@@ -174,6 +174,8 @@ func TestVoiceCharacter(t *testing.T) {
 	const (
 		levelTolDB = 1.5
 		pitchTol   = 0.15
+		minActive  = 0.45 // "roughly half", with 5 % to spare
+		maxActive  = 0.85 // "four fifths", with 5 % to spare
 	)
 	for _, cfg := range []VoiceConfig{
 		{Seed: 1},
@@ -186,7 +188,7 @@ func TestVoiceCharacter(t *testing.T) {
 		if d := 20 * math.Log10(r/c.Level); math.Abs(d) > levelTolDB {
 			t.Errorf("%+v: active RMS %.4f is %.2f dB from Level", cfg, r, d)
 		}
-		if act < 0.45 || act > 0.85 {
+		if act < minActive || act > maxActive {
 			t.Errorf("%+v: active %.2f of the time", cfg, act)
 		}
 		if pk >= limit {
@@ -203,13 +205,16 @@ func TestVoiceSeeds(t *testing.T) {
 	b, _ := NewVoice(VoiceConfig{Seed: 2})
 	x := a.Generate(make([]float32, 8000))
 	y := b.Generate(make([]float32, 8000))
+	// Two seeds must give different talkers; silent stretches (pauses)
+	// may coincide, so up to half the samples may be equal (chosen).
+	const maxSame = 4000
 	same := 0
 	for i := range x {
 		if x[i] == y[i] {
 			same++
 		}
 	}
-	if same > 4000 {
+	if same > maxSame {
 		t.Errorf("seeds 1 and 2 give %d identical samples of 8000", same)
 	}
 }
