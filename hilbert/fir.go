@@ -33,8 +33,8 @@ func IdealTap(n int) float64 {
 }
 
 // KaiserBeta returns the Kaiser window β for a stop-band attenuation of a
-// dB by Kaiser's 1974 formula (Oppenheim & Schafer, 3rd ed., eq. 7.62,
-// equation number from memory):
+// dB by Kaiser's 1974 formula (Oppenheim & Schafer, 3rd ed., sec. 7.5.3,
+// eq. 7.75; equation numbers from memory):
 // 0.1102(a−8.7) above 50 dB, 0.5842(a−21)^0.4 + 0.07886(a−21) from 21 to
 // 50 dB, and 0 below.
 func KaiserBeta(a float64) float64 {
@@ -49,7 +49,7 @@ func KaiserBeta(a float64) float64 {
 
 // kaiserAttenuation returns the attenuation a Kaiser design of n taps with
 // transition width dw rad/sample reaches, from Kaiser's length formula
-// n−1 = (a−8)/(2.285·Δω) (Oppenheim & Schafer, 3rd ed., eq. 7.63), capped
+// n−1 = (a−8)/(2.285·Δω) (Oppenheim & Schafer, 3rd ed., eq. 7.76), capped
 // at 300 dB where float64 arithmetic ends anyway.
 func kaiserAttenuation(n int, dw float64) float64 {
 	return math.Min(2.285*dw*float64(n-1)+8, 300)

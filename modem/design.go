@@ -3,31 +3,26 @@ package modem
 import (
 	"math"
 	"math/cmplx"
+
+	"ssbkit/hilbert"
 )
 
 // KaiserBeta returns the Kaiser window shape parameter β for a stop-band
 // attenuation (and pass-band ripple) of attenDB dB, by Kaiser's empirical
 // formula (Oppenheim & Schafer, Discrete-Time Signal Processing, 3rd ed.,
-// eq. 7.75):
+// eq. 7.75), computed by hilbert.KaiserBeta:
 //
 //	β = 0.1102·(A − 8.7)                          A > 50
 //	β = 0.5842·(A − 21)^0.4 + 0.07886·(A − 21)    21 ≤ A ≤ 50
 //	β = 0                                          A < 21
-func KaiserBeta(attenDB float64) float64 {
-	a := attenDB
-	switch {
-	case a > 50:
-		return 0.1102 * (a - 8.7)
-	case a >= 21:
-		return 0.5842*math.Pow(a-21, 0.4) + 0.07886*(a-21)
-	}
-	return 0
-}
+func KaiserBeta(attenDB float64) float64 { return hilbert.KaiserBeta(attenDB) }
 
 // KaiserOrder returns the even filter order M (the filter has M+1 taps)
 // that a Kaiser-window low-pass needs for a transition band of transition
 // Hz at sample rate rate and attenDB dB of stop-band attenuation, by
-// Kaiser's formula (Oppenheim & Schafer, 3rd ed., eq. 7.76):
+// Kaiser's formula with his constant 7.95, as scipy.signal.kaiserord
+// uses it (Oppenheim & Schafer, 3rd ed., eq. 7.76, round it to 8; from
+// memory), so that the lengths match scipy's (TestKaiserGolden):
 //
 //	M = ⌈(A − 7.95) / (2.285·Δω)⌉,  Δω = 2π·transition/rate,
 //
@@ -53,39 +48,15 @@ func KaiserOrder(transition, rate, attenDB float64) int {
 //
 //	w[k] = I₀(β·√(1 − (2k/(n−1) − 1)²)) / I₀(β),  k = 0…n−1
 //
-// (Oppenheim & Schafer, 3rd ed., eq. 7.72). gonum's dsp/window has no
-// Kaiser window and gonum's mathext no I₀, hence this and besselI0.
+// (Oppenheim & Schafer, 3rd ed., eq. 7.72), computed by hilbert.Kaiser:
+// the phase-splitter designs need the same window, and one I₀ series
+// serves both packages.
 func KaiserWindow(n int, beta float64) []float64 {
 	w := make([]float64, n)
-	if n == 1 {
-		w[0] = 1
-		return w
-	}
-	d := besselI0(beta)
 	for k := range w {
-		r := 2*float64(k)/float64(n-1) - 1
-		w[k] = besselI0(beta*math.Sqrt(math.Max(0, 1-r*r))) / d
+		w[k] = 1
 	}
-	return w
-}
-
-// besselI0 is the modified Bessel function of the first kind, order 0, by
-// its power series I₀(x) = Σ ((x/2)^k / k!)² (Abramowitz & Stegun,
-// Handbook of Mathematical Functions, eq. 9.6.12), summed until the terms
-// no longer change the sum; it converges for all x and in a few dozen
-// terms for the β of filter design (β < 20).
-func besselI0(x float64) float64 {
-	sum, term := 1.0, 1.0
-	h := x / 2
-	for k := 1; k < 500; k++ {
-		term *= h / float64(k)
-		t := term * term
-		sum += t
-		if t < sum*1e-17 {
-			break
-		}
-	}
-	return sum
+	return hilbert.Kaiser(w, beta)
 }
 
 // KaiserLowpass designs a linear-phase low-pass FIR by the Kaiser window
