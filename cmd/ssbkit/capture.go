@@ -60,8 +60,35 @@ func (cf *captureFlags) options(e *env) (iq.Options, error) {
 }
 
 // openCapture opens the capture at path ("-" for standard input) with the
-// raw-input flags cf (may be nil). Errors name the file.
+// raw-input flags cf (may be nil). Errors name the file. A WAV or SigMF
+// file describes itself: a --format or --rate that disagrees with it, or
+// a --center that its SigMF metadata overrides, draws a warning.
 func openCapture(e *env, path string, cf *captureFlags) (*iq.Source, error) {
+	opt, err := cf.options(e)
+	if err != nil {
+		return nil, err
+	}
+	src, err := iq.Open(path, opt)
+	if err != nil {
+		return nil, err
+	}
+	if m := src.Meta(); m.Container != iq.ContainerRaw {
+		if opt.Format != "" && opt.Format != m.Datatype {
+			e.warnf("--format %s ignored: %s holds %s", cf.format, path, m.Datatype)
+		}
+		if opt.Rate != 0 && opt.Rate != m.Rate {
+			e.warnf("--rate %s ignored: %s says %.10g Hz", cf.rate, path, m.Rate)
+		}
+		if opt.HasCenter && m.Center != opt.Center {
+			e.warnf("--center %s ignored: %s says %.10g Hz", cf.center, path, m.Center)
+		}
+	}
+	return src, nil
+}
+
+// reopenCapture opens path again for another pass, as openCapture did
+// but without repeating its warnings.
+func reopenCapture(e *env, path string, cf *captureFlags) (*iq.Source, error) {
 	opt, err := cf.options(e)
 	if err != nil {
 		return nil, err

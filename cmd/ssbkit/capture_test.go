@@ -235,3 +235,51 @@ func TestCaptureWriteBehindError(t *testing.T) {
 		t.Errorf("Abort left %d files", len(ents))
 	}
 }
+
+// TestOpenCaptureIgnoredFlags: a WAV or SigMF file describes itself, so a
+// --format or --rate that disagrees with it (or a --center that SigMF
+// metadata overrides) draws one warning line each; agreeing flags, and a
+// --center for a WAV (which has none), draw none. The figures come from
+// the file.
+func TestOpenCaptureIgnoredFlags(t *testing.T) {
+	dir := t.TempDir()
+	x := make([]complex64, 4096)
+	for i := range x {
+		x[i] = complex(float32(i%7)/8, -float32(i%5)/8)
+	}
+	wav := filepath.Join(dir, "c.wav")
+	writeCapture(t, wav, iq.CF32, 48000, x)
+	sig := filepath.Join(dir, "c.sigmf-meta")
+	cc, err := createCapture(sig, iq.Meta{Datatype: iq.CF32, Rate: 48000, Center: 7.09e6, HasCenter: true}, true)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := cc.Write(x); err != nil {
+		t.Fatal(err)
+	}
+	if err := cc.Commit(); err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []struct {
+		args []string
+		want []string
+	}{
+		{[]string{wav, "--format", "cu8", "--rate", "2.4M"}, []string{
+			"ssbkit: info: warning: --format cu8 ignored: " + wav + " holds cf32_le",
+			"ssbkit: info: warning: --rate 2.4M ignored: " + wav + " says 48000 Hz"}},
+		{[]string{wav, "--format", "cf32", "--rate", "48k", "--center", "7.1M"}, nil},
+		{[]string{sig, "--center", "7.1M"}, []string{"ssbkit: info: warning: --center 7.1M ignored: " + sig + " says 7090000 Hz"}},
+		{[]string{sig, "--center", "7.09M"}, nil},
+	} {
+		code, out, errs := runCmd(t, append([]string{"info", "--json", "-q"}, c.args...)...)
+		if code != exitOK {
+			t.Fatalf("%q: exit %d: %s", c.args, code, errs)
+		}
+		if got := strings.Join(c.want, "\n"); strings.TrimSpace(errs) != got {
+			t.Errorf("%q: stderr %q, want %q", c.args, errs, got)
+		}
+		if !strings.Contains(out, `"rate_hz": 48000`) {
+			t.Errorf("%q: the rate is not the file's:\n%s", c.args, out)
+		}
+	}
+}

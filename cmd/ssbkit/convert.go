@@ -81,7 +81,7 @@ func runConvert(e *env, args []string) error {
 			return nonFiniteError(in, rep.NonFinite)
 		}
 		src.Close()
-		if src, err = openCapture(e, in, cf); err != nil {
+		if src, err = reopenCapture(e, in, cf); err != nil {
 			return err
 		}
 		defer src.Close()

@@ -87,7 +87,7 @@ func runInfo(e *env, args []string) error {
 	rep.File = path
 	if rep.NonFinite > 0 {
 		// Reported, not fatal: info's job is to describe the capture.
-		fmt.Fprintf(e.stderr, "ssbkit: info: warning: %s: %d NaN or Inf values (read as 0 in these figures)\n", src.Name(), rep.NonFinite)
+		e.warnf("%s: %d NaN or Inf values (read as 0 in these figures)", src.Name(), rep.NonFinite)
 	}
 	w := e.stdout
 	var of *outFile

@@ -23,6 +23,14 @@ type env struct {
 	stdout, stderr io.Writer
 	// stderrTTY reports whether stderr is a terminal (progress bars).
 	stderrTTY bool
+	// cmd is the running subcommand's name, for warnings.
+	cmd string
+}
+
+// warnf prints a one-line warning, "ssbkit: CMD: warning: …", on stderr;
+// the run goes on. Warnings are not silenced by -q.
+func (e *env) warnf(format string, a ...any) {
+	fmt.Fprintf(e.stderr, "ssbkit: %s: warning: %s\n", e.cmd, fmt.Sprintf(format, a...))
 }
 
 // command is one subcommand: its one-line summary and its entry point.
@@ -90,6 +98,7 @@ func run(args []string, e *env) int {
 		if c.name != name {
 			continue
 		}
+		e.cmd = name
 		err := c.run(e, args[1:])
 		return report(e, name, err)
 	}

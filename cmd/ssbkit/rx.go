@@ -150,7 +150,7 @@ func runRx(e *env, args []string) error {
 		}
 		chans = found
 		src.Close()
-		if src, err = openCapture(e, in, cf); err != nil {
+		if src, err = reopenCapture(e, in, cf); err != nil {
 			return err
 		}
 		defer src.Close()
@@ -259,10 +259,10 @@ func runRx(e *env, args []string) error {
 	// Warnings are not silenced by -q.
 	for i, c := range rcv.Channels() {
 		if *quiet && writers[i].clipped > 0 {
-			fmt.Fprintf(e.stderr, "ssbkit: rx: warning: %s: %d samples clipped\n", targets[i], writers[i].clipped)
+			e.warnf("%s: %d samples clipped", targets[i], writers[i].clipped)
 		}
 		if s := c.SAM(); s != nil && s.LockTime() < 0 {
-			fmt.Fprintf(e.stderr, "ssbkit: rx: warning: %s: sam found no carrier to lock to; the audio is the unlocked in-phase part\n", targets[i])
+			e.warnf("%s: sam found no carrier to lock to; the audio is the unlocked in-phase part", targets[i])
 		}
 	}
 	return nil
@@ -317,7 +317,7 @@ func parseChannelSpec(s string, def modem.Mode) (float64, modem.Mode, error) {
 const autoSegments = 256
 
 func detectChannels(e *env, in string, cf *captureFlags, quiet bool) ([]rxChannel, error) {
-	src, err := openCapture(e, in, cf)
+	src, err := reopenCapture(e, in, cf)
 	if err != nil {
 		return nil, err
 	}

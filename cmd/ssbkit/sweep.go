@@ -113,7 +113,7 @@ func runSweep(e *env, args []string) error {
 			s := hilbert.Spec{Design: d, Taps: n, Sections: n, Rate: rate, Low: low, High: high}
 			if d == "fft" && n < hilbert.MinFFT {
 				// a warning: it survives -q, as rx's do
-				fmt.Fprintf(e.stderr, "ssbkit: sweep: warning: fft block size %d skipped (at least %d)\n", n, hilbert.MinFFT)
+				e.warnf("fft block size %d skipped (at least %d)", n, hilbert.MinFFT)
 				continue
 			}
 			specs = append(specs, s)

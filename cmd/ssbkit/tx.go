@@ -464,10 +464,10 @@ func runTx(e *env, args []string) error {
 		fmt.Fprintf(e.stderr, "tx: %s %s, %d samples at %g Hz (%.2f s): PEP %.2f dBFS, average %.2f dBFS, PEP-to-average %.2f dB\n",
 			*out, strings.ToUpper(cfg.Mode), written, cfg.OutRate, rep.DurationS, rep.PEPdBFS, rep.AverageDBFS, rep.PEPToAverageDB)
 		if rep.SuppressionDB > 0 && rep.SuppressionDB < 60 {
-			fmt.Fprintf(e.stderr, "ssbkit: tx: warning: the splitter's predicted opposite-sideband suppression is only %.1f dB over %g:%g Hz (more --taps or --sections raise it)\n", rep.SuppressionDB, lo, hi)
+			e.warnf("the splitter's predicted opposite-sideband suppression is only %.1f dB over %g:%g Hz (more --taps or --sections raise it)", rep.SuppressionDB, lo, hi)
 		}
 		if pep > 1 {
-			fmt.Fprintf(e.stderr, "ssbkit: tx: warning: PEP above full scale; integer formats clip\n")
+			e.warnf("PEP above full scale; integer formats clip")
 		}
 	}
 	return nil
