@@ -120,8 +120,9 @@ func TestBesselI0(t *testing.T) {
 
 func TestKaiserBeta(t *testing.T) {
 	// Kaiser's formulas (Oppenheim & Schafer, 3rd ed., sec. 7.5.3, eq.
-	// 7.75, equation number from memory), evaluated by hand: 60 dB → 0.1102·51.3 = 5.65326;
-	// 40 dB → 0.5842·19^0.4 + 0.07886·19 = 3.39532; 20 dB → 0.
+	// 7.75, equation number from memory), evaluated by hand:
+	// 60 dB → 0.1102·51.3 = 5.65326; 40 dB → 0.5842·19^0.4 + 0.07886·19 =
+	// 3.39532; 20 dB → 0.
 	const tol = 1e-4
 	for _, c := range []struct{ a, want float64 }{{60, 5.65326}, {40, 3.39532}, {20, 0}} {
 		if got := KaiserBeta(c.a); math.Abs(got-c.want) > tol {

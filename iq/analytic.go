@@ -9,7 +9,7 @@ import (
 
 // DefaultAnalyticTaps is the Hilbert filter length used by Open for real
 // recordings. With the Blackman–Nuttall window the image of a real tone is
-// more than 80 dB down from 0.001·fs to 0.499·fs (over 110 dB measured) (see
+// more than 80 dB down from 0.001·fs to 0.499·fs (over 110 dB measured;
 // TestAnalyticImage).
 const DefaultAnalyticTaps = 4095
 
@@ -22,9 +22,9 @@ const DefaultAnalyticTaps = 4095
 //	h[k] = 2/(πk) for odd k, 0 for even k   (k = −D … D, D = (taps−1)/2)
 //
 // (the ideal discrete Hilbert transformer, Oppenheim & Schafer,
-// Discrete-Time Signal Processing, 3rd ed., Sec. 12.4; equation number not
-// quoted, from memory) truncated by a Blackman–Nuttall window from gonum's dsp/window. The real
-// part is x delayed by D samples, exactly. The imaginary part is computed
+// Discrete-Time Signal Processing, 3rd ed., sec. 12.4; from memory)
+// truncated by a Blackman–Nuttall window from gonum's dsp/window. The
+// real part is x delayed by D samples, exactly. The imaginary part is computed
 // by FFT overlap-save convolution (gonum's dsp/fourier real FFT), so the
 // cost per sample grows with log(taps), not taps; the overlap-save loop is
 // written here because gonum has no streaming convolution.

@@ -41,7 +41,8 @@ type FirstStage struct {
 // Taps returns the number of taps of the first stage.
 func (f FirstStage) Taps() int { return f.Order*(f.Decim-1) + 1 }
 
-// String describes the chain, e.g. "2400000 Hz ÷10 (comb², 19 taps) ÷5 ÷8 → 6000 Hz".
+// String describes the chain, for example
+// "2.4e+06 Hz ÷16 (comb^2, 31 taps) ÷5 ÷5 → 6000 Hz" (see ExampleChannel).
 func (p ChannelPlan) String() string {
 	s := fmt.Sprintf("%g Hz ÷%d (comb^%d, %d taps)", p.InRate, p.First.Decim, p.First.Order, p.First.Taps())
 	for _, d := range p.Stages {

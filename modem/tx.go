@@ -12,7 +12,8 @@ import (
 const (
 	// DefaultSplitterDesign and DefaultSplitterTaps give ≥ 60 dB of
 	// opposite-sideband suppression over 300…2700 Hz at the 8 kHz internal
-	// rate (81 dB predicted) (measured by hilbert.Analyze in TestTxDefaultSuppression).
+	// rate (81 dB predicted by hilbert.Analyze, checked in
+	// TestTxDefaultSuppression).
 	DefaultSplitterDesign = "equiripple"
 	DefaultSplitterTaps   = 63
 	// txAttenDB is the stop-band attenuation of the resamplers and the

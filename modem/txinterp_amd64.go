@@ -9,9 +9,10 @@ import "golang.org/x/sys/cpu"
 // scalar SSE for float32 loops).
 var useMixInterpAVX2 = cpu.X86.HasAVX2 && cpu.X86.HasFMA
 
-// mixInterpRealAVX2 and mixInterpCplxAVX2 are mixInterpGo for real and complex taps
-// (txinterp_amd64.s). They read win[:n−1+k] and taps[:groups·k·stride] and
-// write dst[:(n−1)·up + 4·groups]; k is a positive multiple of 4.
+// mixInterpRealAVX2 and mixInterpCplxAVX2 are mixInterpGo for real and
+// complex taps (txinterp_amd64.s). They read win[:n−1+k] and
+// taps[:groups·k·stride] and write dst[:(n−1)·up + 4·groups]; k is a
+// positive multiple of 4.
 //
 //go:noescape
 func mixInterpRealAVX2(dst, win *complex64, taps *float32, n, k, groups, up int)
