@@ -41,6 +41,13 @@ Examples:
   ssbkit tx voice.wav --design allpass --sections 6 --carrier -20 -o r3e.cs16
   ssbkit tx voice.wav --method weaver --band 200:3000 --gain 0 -o weaver.cf32`
 
+// outOfBandDB is how far the band-limited audio's peak may sit below the
+// file's before tx warns that the audio lies mostly outside --band. Voice
+// loses a few dB to a 300–2700 Hz band (common practice); a tone outside
+// the band keeps only the clicks of its start and end, some 15–20 dB
+// down (a 5 kHz tone at 22.05 kHz, measured).
+const outOfBandDB = 12
+
 // txBlock is the number of audio samples modulated at a time.
 const txBlock = 1024
 
@@ -270,10 +277,14 @@ func runTx(e *env, args []string) error {
 		return usagef("%v", err)
 	}
 	buf := make([]float32, 8192)
+	var rawPeak float64 // of the audio before the band filter
 	for {
 		n, err := src.Read(buf)
 		if n > 0 {
 			sv.Process(buf[:n])
+			for _, v := range buf[:n] {
+				rawPeak = max(rawPeak, math.Abs(float64(v)))
+			}
 		}
 		if err == io.EOF {
 			break
@@ -292,6 +303,12 @@ func runTx(e *env, args []string) error {
 			return fmt.Errorf("%s: the audio is silent", input)
 		}
 		return fmt.Errorf("%s: the audio is silent within the pass band %g:%g Hz (see --band)", input, cfg.BandLow, cfg.BandHigh)
+	}
+	if d := 20 * math.Log10(rawPeak/cfg.Levels.Peak); input != "" && d > outOfBandDB {
+		// Normalising the peak would lift little but the band filter's
+		// leakage and the audio's edges.
+		e.warnf("%s: the audio within the pass band %g:%g Hz peaks %.1f dB below the file's peak: most of it lies outside the band (see --band)",
+			input, cfg.BandLow, cfg.BandHigh, d)
 	}
 
 	// Gain: fixed, or the peak envelope normalised.

@@ -2,6 +2,7 @@ package main
 
 import (
 	"encoding/json"
+	"fmt"
 	"io"
 	"math"
 	"math/cmplx"
@@ -260,6 +261,31 @@ func TestTxSectionsPickAllpass(t *testing.T) {
 		b, err := os.ReadFile(out)
 		if err != nil || !strings.Contains(string(b), c.want) {
 			t.Errorf("%q: metadata lacks %q (%v):\n%s", c.args, c.want, err, b)
+		}
+	}
+}
+
+// TestTxOutOfBandWarning: audio that lies outside --band (a 5 kHz tone
+// against 300–2700 Hz) would be normalised from the filter's leftovers;
+// tx warns on one line, even with -q, naming the file. A tone in the band
+// draws no warning.
+func TestTxOutOfBandWarning(t *testing.T) {
+	dir := t.TempDir()
+	for _, c := range []struct {
+		f    float64
+		warn bool
+	}{{5000, true}, {1000, false}} {
+		wav := filepath.Join(dir, fmt.Sprintf("t%g.wav", c.f))
+		if err := os.WriteFile(wav, monoWAV16(22050, 11025, c.f), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		code, _, stderr := runCmd(t, "tx", wav, "-q", "-o", filepath.Join(dir, "o.cf32"), "--force")
+		if code != exitOK {
+			t.Fatalf("%g Hz: exit %d: %s", c.f, code, stderr)
+		}
+		want := "ssbkit: tx: warning: " + wav + ": the audio within the pass band 300:2700 Hz peaks "
+		if got := strings.HasPrefix(stderr, want) && strings.Count(stderr, "\n") == 1; got != c.warn {
+			t.Errorf("%g Hz: stderr %q, want warning %v", c.f, stderr, c.warn)
 		}
 	}
 }
