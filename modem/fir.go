@@ -16,7 +16,6 @@ const firChunk = 2048
 type FIR struct {
 	rev []float32   // taps reversed: rev[k] = h[L−1−k]
 	buf []complex64 // history (L−1) then the current chunk
-	n   int         // len(taps)
 }
 
 // NewFIR returns a FIR filter with the given taps (copied). It panics if
@@ -25,8 +24,8 @@ func NewFIR(taps []float64) *FIR {
 	if len(taps) == 0 {
 		panic("modem: FIR needs at least one tap")
 	}
-	f := &FIR{n: len(taps), rev: reverse32(taps)}
-	f.buf = make([]complex64, f.n-1, f.n-1+firChunk)
+	f := &FIR{rev: reverse32(taps)}
+	f.buf = make([]complex64, len(taps)-1, len(taps)-1+firChunk)
 	return f
 }
 
@@ -39,14 +38,14 @@ func reverse32(taps []float64) []float32 {
 }
 
 // Len returns the number of taps.
-func (f *FIR) Len() int { return f.n }
+func (f *FIR) Len() int { return len(f.rev) }
 
 // Delay returns the group delay (len−1)/2 in samples, exact for the
 // linear-phase (symmetric or antisymmetric) taps this package designs.
-func (f *FIR) Delay() float64 { return float64(f.n-1) / 2 }
+func (f *FIR) Delay() float64 { return float64(len(f.rev)-1) / 2 }
 
 // Reset clears the history to zeros.
-func (f *FIR) Reset() { clear(f.buf[:f.n-1]) }
+func (f *FIR) Reset() { clear(f.buf[:len(f.rev)-1]) }
 
 // Process filters src into dst and returns dst[:len(src)]. A nil or short
 // dst is allocated; dst may be src itself.
@@ -56,7 +55,7 @@ func (f *FIR) Process(dst, src []complex64) []complex64 {
 	}
 	dst = dst[:len(src)]
 	h := f.rev
-	L := f.n
+	L := len(h)
 	for off := 0; off < len(src); off += firChunk {
 		c := min(firChunk, len(src)-off)
 		buf := append(f.buf[:L-1], src[off:off+c]...)
@@ -93,7 +92,6 @@ type RealFIR struct {
 	rev []float32
 	buf []float32
 	pad []float32 // the vector kernel's last partial group
-	n   int
 }
 
 // NewRealFIR returns a real FIR filter with the given taps (copied). It
@@ -102,22 +100,22 @@ func NewRealFIR(taps []float64) *RealFIR {
 	if len(taps) == 0 {
 		panic("modem: FIR needs at least one tap")
 	}
-	f := &RealFIR{n: len(taps), rev: reverse32(taps)}
-	f.buf = make([]float32, f.n-1, f.n-1+firChunk)
+	f := &RealFIR{rev: reverse32(taps)}
+	f.buf = make([]float32, len(taps)-1, len(taps)-1+firChunk)
 	if useMixInterpAVX2 {
-		f.pad = make([]float32, firVecGroup+f.n-1)
+		f.pad = make([]float32, firVecGroup+len(taps)-1)
 	}
 	return f
 }
 
 // Len returns the number of taps.
-func (f *RealFIR) Len() int { return f.n }
+func (f *RealFIR) Len() int { return len(f.rev) }
 
 // Delay returns the group delay (len−1)/2 in samples.
-func (f *RealFIR) Delay() float64 { return float64(f.n-1) / 2 }
+func (f *RealFIR) Delay() float64 { return float64(len(f.rev)-1) / 2 }
 
 // Reset clears the history to zeros.
-func (f *RealFIR) Reset() { clear(f.buf[:f.n-1]) }
+func (f *RealFIR) Reset() { clear(f.buf[:len(f.rev)-1]) }
 
 // Process filters src into dst and returns dst[:len(src)]. A nil or short
 // dst is allocated; dst may be src itself.
@@ -127,7 +125,7 @@ func (f *RealFIR) Process(dst, src []float32) []float32 {
 	}
 	dst = dst[:len(src)]
 	h := f.rev
-	L := f.n
+	L := len(h)
 	for off := 0; off < len(src); off += firChunk {
 		c := min(firChunk, len(src)-off)
 		buf := append(f.buf[:L-1], src[off:off+c]...)
