@@ -375,10 +375,21 @@ func writeMeasurePNG(out io.Writer, name string, r *spectral.Result, width, heig
 		sc.GlyphStyle.Radius = vg.Points(2.5)
 		p.Add(sc)
 	}
-	summary := fmt.Sprintf("suppression %.1f dB   PEP %.1f dBFS   carrier %.1f dBc   99%% OBW %.0f Hz",
-		r.SuppressionDB, r.PEPDBFS, r.CarrierDBc, r.OccupiedBandwidthHz)
+	// figures at the noise are bounds, marked as in the text report
+	ge := ""
+	if r.UnwantedAtNoise {
+		ge = "≥ "
+	}
+	le := func(atNoise bool) string {
+		if atNoise {
+			return "≤ "
+		}
+		return ""
+	}
+	summary := fmt.Sprintf("suppression %s%.1f dB   PEP %.1f dBFS   carrier %s%.1f dBc   99%% OBW %.0f Hz",
+		ge, r.SuppressionDB, r.PEPDBFS, le(r.CarrierAtNoise), r.CarrierDBc, r.OccupiedBandwidthHz)
 	if r.TwoTone {
-		summary += fmt.Sprintf("   IMD3 %.1f dBc   IMD5 %.1f dBc", r.IMD3DBc, r.IMD5DBc)
+		summary += fmt.Sprintf("   IMD3 %s%.1f dBc   IMD5 %s%.1f dBc", le(r.IMD3AtNoise), r.IMD3DBc, le(r.IMD5AtNoise), r.IMD5DBc)
 	}
 	p.X.Label.Text = "offset from carrier (Hz)\n" + summary
 	p.X.Min, p.X.Max = -span, span
