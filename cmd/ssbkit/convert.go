@@ -40,8 +40,10 @@ func runConvert(e *env, args []string) error {
 		in, out = fs.Arg(0), fs.Arg(1)
 	case fs.NArg() == 1 && *output != "":
 		in, out = fs.Arg(0), *output
+	case fs.NArg() == 2:
+		return usagef("OUT given twice: as the second argument and with -o %s", *output)
 	default:
-		return usagef("want IN and OUT (see ssbkit convert --help)")
+		return usagef("want IN and OUT, got %d arguments (see ssbkit convert --help)", fs.NArg())
 	}
 	dt, err := iq.ParseDatatype(*to)
 	if err != nil {

@@ -175,6 +175,7 @@ func TestConvertUsage(t *testing.T) {
 		want string
 	}{
 		{[]string{"convert", "a.cf32"}, "want IN and OUT"},
+		{[]string{"convert", "a.cf32", "b.cu8", "-o", "b.cf32"}, "OUT given twice"},
 		{[]string{"convert", "--to", "cu8", "a.cf32", "b.wav"}, "WAV holds"},
 		{[]string{"convert", "--to", "ci8", "a.cf32", "b.cu8"}, "contradicts"},
 		{[]string{"convert", "--to", "rf32", "a.cf32", "b.sigmf-meta"}, "complex"},
