@@ -256,22 +256,26 @@ func newPolyState(s stagePlan) polyState {
 // maxOut bounds the outputs for n inputs: ⌈n·up/down⌉ + 1.
 func (s *polyState) maxOut(n int) int { return (n*s.up+s.down-1)/s.down + 1 }
 
-// cstage is a complex polyphase stage.
-type cstage struct {
+// polyBuf is a polyphase stage's position and its input buffer: k−1
+// inputs of history, then the chunk being processed.
+type polyBuf[T float32 | complex64] struct {
 	polyState
-	buf []complex64
+	buf []T
 }
 
 // init sets the stage to ps with history for chunks of n inputs.
-func (s *cstage) init(ps polyState, n int) {
+func (s *polyBuf[T]) init(ps polyState, n int) {
 	s.polyState = ps
-	s.buf = make([]complex64, ps.k-1, ps.k-1+n)
+	s.buf = make([]T, ps.k-1, ps.k-1+n)
 }
 
-func (s *cstage) reset() {
+func (s *polyBuf[T]) reset() {
 	s.p, s.j = 0, 0
 	clear(s.buf[:s.k-1])
 }
+
+// cstage is a complex polyphase stage.
+type cstage struct{ polyBuf[complex64] }
 
 // process appends the outputs for src to dst (whose capacity must hold
 // them) and returns it.
@@ -350,21 +354,7 @@ func (s *cstage) process(dst, src []complex64) []complex64 {
 }
 
 // rstage is a real polyphase stage.
-type rstage struct {
-	polyState
-	buf []float32
-}
-
-// init sets the stage to ps with history for chunks of n inputs.
-func (s *rstage) init(ps polyState, n int) {
-	s.polyState = ps
-	s.buf = make([]float32, ps.k-1, ps.k-1+n)
-}
-
-func (s *rstage) reset() {
-	s.p, s.j = 0, 0
-	clear(s.buf[:s.k-1])
-}
+type rstage struct{ polyBuf[float32] }
 
 func (s *rstage) process(dst, src []float32) []float32 {
 	k := s.k
