@@ -39,8 +39,11 @@
 // # Detection
 //
 // Detect finds signals in a PSD: noise floor from a low quantile of the
-// smoothed spectrum, a threshold above it, grouping of occupied bins, and
-// a kind from the spectral shape. For SSB the suppressed carrier is put
+// smoothed spectrum, a threshold above it, grouping of occupied bins,
+// edges that leave out the Hann window's skirts (a bin within the
+// threshold of the leakage 1/(πx(x²−1))² of a stronger bin x bins away,
+// Harris 1978, is the window's, not the signal's), and a kind from the
+// spectral shape. For SSB the suppressed carrier is put
 // AudioLowHz (default 300 Hz, the usual low edge of a voice transmitter,
 // common practice) outside the steep edge nearest the voice energy.
 //
