@@ -1,10 +1,10 @@
 package iq
 
 import (
+	"math"
+
 	"gonum.org/v1/gonum/dsp/fourier"
 	"gonum.org/v1/gonum/dsp/window"
-
-	"ssbkit/hilbert"
 )
 
 // DefaultAnalyticTaps is the Hilbert filter length used by Open for real
@@ -21,9 +21,10 @@ const DefaultAnalyticTaps = 4095
 //
 //	h[k] = 2/(πk) for odd k, 0 for even k   (k = −D … D, D = (taps−1)/2)
 //
-// (hilbert.IdealTap: the ideal discrete Hilbert transformer, Oppenheim &
-// Schafer, Discrete-Time Signal Processing, 3rd ed., sec. 12.4; from
-// memory) truncated by a Blackman–Nuttall window from gonum's dsp/window. The
+// (the ideal discrete Hilbert transformer, Oppenheim & Schafer,
+// Discrete-Time Signal Processing, 3rd ed., sec. 12.4; from memory; the
+// formula is repeated rather than taken from package hilbert because iq
+// imports nothing of the project, DEVELOPERS.md) truncated by a Blackman–Nuttall window from gonum's dsp/window. The
 // real part is x delayed by D samples, exactly. The imaginary part is computed
 // by FFT overlap-save convolution (gonum's dsp/fourier real FFT), so the
 // cost per sample grows with log(taps), not taps; the overlap-save loop is
@@ -58,9 +59,14 @@ func NewAnalytic(taps int) *Analytic {
 	a := &Analytic{taps: taps, d: (taps - 1) / 2, n: n, l: n - taps + 1}
 	a.fft = fourier.NewFFT(n)
 	h := make([]float64, n)
+	for i := 0; i < taps; i++ {
+		if k := i - a.d; k%2 != 0 {
+			h[i] = 2 / (math.Pi * float64(k))
+		}
+	}
 	w := window.BlackmanNuttall(ones(taps))
 	for i := range w {
-		h[i] = hilbert.IdealTap(i-a.d) * w[i]
+		h[i] *= w[i]
 	}
 	a.hf = a.fft.Coefficients(nil, h)
 	for i := range a.hf {
