@@ -110,3 +110,32 @@ func assertNoTemp(t *testing.T, dir string) {
 		}
 	}
 }
+
+// TestStandardOutputUse: "-" is standard output only where a command
+// streams there (tx and convert captures, reports); a PNG, a WAV (its
+// header is completed last) or a side output beside the report is refused
+// as a usage error before any work, and no file named "-" appears. Also
+// tx's samples and --json cannot share standard output.
+func TestStandardOutputUse(t *testing.T) {
+	dir := t.TempDir()
+	t.Chdir(dir) // where a file named "-" would appear
+	in := writeCF32(t, dir, "in.cf32", 4096, 48000, 1e-6, tone{1000, 0.3})
+	for _, args := range [][]string{
+		{"rx", in, "--rate", "48k", "-o", "-"},
+		{"spectrum", in, "--rate", "48k", "-o", "-", "--list"},
+		{"measure", in, "--rate", "48k", "--plot", "-"},
+		{"sweep", "--designs", "kaiser", "--taps", "31", "--csv", "-"},
+		{"sweep", "--designs", "kaiser", "--taps", "31", "--plot", "-"},
+		{"splitter", "--coeffs", "-"},
+		{"splitter", "--plot", "-"},
+		{"tx", "--tone", "1k", "--seconds", "0.01", "-o", "-", "--json"},
+	} {
+		code, _, errs := runCmd(t, args...)
+		if code != exitUsage || strings.Count(errs, "\n") != 1 || !strings.Contains(errs, "standard output") {
+			t.Errorf("%q: exit %d, %q; want a one-line usage error about standard output", args, code, errs)
+		}
+		if _, err := os.Stat(filepath.Join(dir, "-")); err == nil {
+			t.Fatalf("%q: wrote a file named -", args)
+		}
+	}
+}

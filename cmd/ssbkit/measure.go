@@ -83,6 +83,9 @@ func runMeasure(e *env, args []string) error {
 		return usagef("--resolution %q: want a positive frequency in Hz", *resS)
 	}
 	in := fs.Arg(0)
+	if err := needFile("--plot", *plotTo); err != nil {
+		return err
+	}
 	for _, o := range []string{*out, *plotTo} {
 		if o != "" && o != "-" {
 			if err := checkOutput(o, *force, in); err != nil {

@@ -78,10 +78,23 @@ func checkOutput(target string, force bool, inputs ...string) error {
 	return nil
 }
 
+// needFile returns a usage error when target is "-": the output of flag
+// (a PNG, or a WAV whose header is completed last) needs a file.
+func needFile(flag, target string) error {
+	if target == "-" {
+		return usagef("%s -: this output needs a file name, not standard output", flag)
+	}
+	return nil
+}
+
 // createOutput opens a temporary file beside target. The caller writes to
 // it and then calls Commit, or Abort on failure (Abort after Commit is a
 // no-op, so `defer f.Abort()` is the usual pattern).
 func createOutput(target string, force bool, inputs ...string) (*outFile, error) {
+	if target == "-" {
+		// callers that can write to standard output do so themselves
+		return nil, needFile("output", target)
+	}
 	if err := checkOutput(target, force, inputs...); err != nil {
 		return nil, err
 	}

@@ -73,6 +73,9 @@ func runRx(e *env, args []string) error {
 	if *out == "" {
 		return usagef("no output path given (-o OUT.wav)")
 	}
+	if err := needFile("-o", *out); err != nil {
+		return err
+	}
 	defMode, err := modem.ParseMode(*mode)
 	if err != nil {
 		return usagef("--mode: %v", err)

@@ -88,6 +88,9 @@ func runSpectrum(e *env, args []string) error {
 		return usagef("--width and --height: want at least 200 points")
 	}
 	in := fs.Arg(0)
+	if err := needFile("-o", *out); err != nil {
+		return err
+	}
 	if *out != "" {
 		if err := checkOutput(*out, *force, in); err != nil {
 			return err

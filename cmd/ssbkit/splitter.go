@@ -85,6 +85,13 @@ func runSplitter(e *env, args []string) error {
 	if err != nil {
 		return err
 	}
+	// standard output carries the summary (or export): the side outputs need files
+	if err := needFile("--coeffs", *coeffs); err != nil {
+		return err
+	}
+	if err := needFile("--plot", *plotTo); err != nil {
+		return err
+	}
 	for _, o := range []string{*out, *coeffs, *plotTo} {
 		if o != "" && o != "-" {
 			if err := checkOutput(o, *force); err != nil {

@@ -93,6 +93,13 @@ func runSweep(e *env, args []string) error {
 	if err != nil {
 		return err
 	}
+	// standard output carries the table (or JSON): the side outputs need files
+	if err := needFile("--csv", *csvTo); err != nil {
+		return err
+	}
+	if err := needFile("--plot", *plotTo); err != nil {
+		return err
+	}
 	for _, o := range []string{*out, *csvTo, *plotTo} {
 		if o != "" && o != "-" {
 			if err := checkOutput(o, *force); err != nil {

@@ -138,6 +138,9 @@ func runTx(e *env, args []string) error {
 	if *out == "" {
 		return usagef("no output path given (-o OUT)")
 	}
+	if *out == "-" && *asJSON {
+		return usagef("-o - and --json both write to standard output; choose one")
+	}
 
 	// Settings.
 	cfg := modem.TxConfig{Mode: *mode, Method: *method}
