@@ -312,13 +312,13 @@ func parseChannelSpec(s string, def modem.Mode) (float64, modem.Mode, error) {
 	return f, m, nil
 }
 
-// detectChannels runs signal detection over the capture and returns a
-// channel for every usb, lsb and am signal found.
 // autoSegments is the most segments rx --auto transforms to find signals
 // (enough that the averaged noise floor is steady to about ±0.3 dB:
 // Welch's variance falls as 1/segments, from memory).
 const autoSegments = 256
 
+// detectChannels runs signal detection over the capture and returns a
+// channel for every usb, lsb and am signal found.
 func detectChannels(e *env, in string, cf *captureFlags, quiet bool) ([]rxChannel, error) {
 	src, err := reopenCapture(e, in, cf)
 	if err != nil {
