@@ -185,7 +185,7 @@ func (d *demo) run() error {
 	if err := d.writeCapture(demoBand, band, bandMeta(truth.Band)); err != nil {
 		return err
 	}
-	if err := d.writeCapture(demoBench, bench, benchMeta(truth.Bench)); err != nil {
+	if err := d.writeCapture(demoBench, bench, benchMeta(truth.Bench, bench.Samples())); err != nil {
 		return err
 	}
 	tj, _ := json.MarshalIndent(truth, "", "  ")
@@ -315,9 +315,9 @@ func bandMeta(t samples.BandTruth) iq.Meta {
 	return m
 }
 
-func benchMeta(t samples.BenchTruth) iq.Meta {
+func benchMeta(t samples.BenchTruth, n int64) iq.Meta {
 	return iq.Meta{Datatype: iq.CF32, Rate: t.RateHz, Center: t.CenterHz, HasCenter: true,
-		Samples:     int64(math.Round(samples.DefaultBenchConfig().Seconds * t.RateHz)),
+		Samples:     n,
 		Description: "ssbkit demo: bench test of a transmitter, two tones, upper sideband",
 		Annotations: []iq.Annotation{{
 			FreqLowerEdge: t.CenterHz + t.CarrierOffsetHz + t.BandHz[0],
