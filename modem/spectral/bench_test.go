@@ -51,3 +51,22 @@ func BenchmarkMeasurerAdd(b *testing.B) {
 		m.Add(x)
 	}
 }
+
+// BenchmarkDetect times detection on the PSD of voiceCapture (three
+// signals and noise) at two FFT lengths; bytes are the PSD's float64s.
+func BenchmarkDetect(b *testing.B) {
+	const rate = 48000.0
+	x := voiceCapture(1<<17, rate, -15000, 4000, 14000)
+	for _, n := range []int{1024, 8192} {
+		a := NewAccumulator(n, rate)
+		a.Add(x)
+		psd := a.PSD()
+		b.Run(fmt.Sprintf("fft=%d", n), func(b *testing.B) {
+			b.SetBytes(int64(8 * len(psd)))
+			b.ReportAllocs()
+			for b.Loop() {
+				Detect(psd, rate, DetectOptions{})
+			}
+		})
+	}
+}
