@@ -132,6 +132,9 @@ func runTx(e *env, args []string) error {
 	if len(tones) == 0 && fs.NArg() == 0 {
 		return usagef("no audio: give AUDIO.wav, --tone HZ or --two-tone HZ,HZ")
 	}
+	if len(tones) == 0 && fs.Changed("seconds") {
+		return usagef("--seconds applies to test tones (an audio file has its own length)")
+	}
 	if len(tones) > 0 && !(*seconds > 0 && *seconds <= 24*3600) {
 		return usagef("--seconds %g: want more than 0 and at most a day", *seconds)
 	}
@@ -212,6 +215,9 @@ func runTx(e *env, args []string) error {
 			return usagef("--carrier %g dB: want a level below 0 dB relative to PEP", *carrier)
 		}
 		cfg.Carrier, cfg.CarrierDB = true, *carrier
+	}
+	if fs.Changed("depth") && cfg.Mode != "am" {
+		return usagef("--depth applies to --mode am")
 	}
 	if !(*depth > 0 && *depth <= 1) {
 		return usagef("--depth %g: want a value in (0, 1]", *depth)
