@@ -81,6 +81,10 @@ func runSpectrum(e *env, args []string) error {
 	if err != nil || !(res > 0) {
 		return usagef("--resolution %q: want a positive frequency in Hz", *resS)
 	}
+	if !(*thr > 0 && *thr <= 100) {
+		// 0 would also read as "the default" to spectral.DetectOptions
+		return usagef("--threshold %g: want a level above 0 and at most 100 dB", *thr)
+	}
 	if *rows < 1 || *rows > 4000 {
 		return usagef("--rows %d: want 1…4000", *rows)
 	}

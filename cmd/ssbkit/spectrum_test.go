@@ -80,6 +80,8 @@ func TestSpectrumUsage(t *testing.T) {
 		{[]string{in, "--rate", "48k", "--list", "--json"}, exitUsage, "exclude"},
 		{[]string{in, "--rate", "48k", "--list", "--resolution", "1"}, exitFailure, "too few"},
 		{[]string{in, "--rate", "48k", "-o", in, "--force"}, exitUsage, "also an input"},
+		{[]string{in, "--rate", "48k", "--list", "--threshold", "0"}, exitUsage, "--threshold 0"},
+		{[]string{in, "--rate", "48k", "--list", "--threshold", "-3"}, exitUsage, "--threshold -3"},
 	} {
 		code, _, errs := runCmd(t, append([]string{"spectrum"}, tc.args...)...)
 		if code != tc.code || !strings.Contains(errs, tc.msg) {
