@@ -167,6 +167,10 @@ func runTx(e *env, args []string) error {
 	if *design == "weaver" {
 		return usagef("--design weaver: use --method weaver")
 	}
+	if fs.Changed("taps") && *taps <= 0 || fs.Changed("sections") && *sections <= 0 {
+		// 0 would read as "the default" to modem.TxConfig
+		return usagef("--taps and --sections: want a positive length")
+	}
 	// --taps sizes FIR, Weaver and FFT splitters, --sections the all-pass
 	// pair: a length for the other kind would be silently dropped.
 	switch allpass := cfg.Splitter.Design == "allpass"; {

@@ -176,6 +176,7 @@ func TestTxBadInput(t *testing.T) {
 		{[]string{"--tone", "1k", "--two-tone", "700,1900"}, exitUsage, "exclude"},
 		{[]string{"--tone", "1k", "--design", "allpass", "--taps", "31"}, exitUsage, "--taps does not apply"},
 		{[]string{"--tone", "1k", "--depth", "0.5"}, exitUsage, "--depth applies to --mode am"},
+		{[]string{"--tone", "1k", "--taps", "0"}, exitUsage, "positive length"},
 		{[]string{silent, "--seconds", "2"}, exitUsage, "--seconds applies to test tones"},
 		{[]string{"--tone", "1k", "--taps", "31", "--sections", "3"}, exitUsage, "exclude"},
 		{[]string{"--tone", "1k", "--design", "kaiser", "--sections", "3"}, exitUsage, "--sections applies"},
