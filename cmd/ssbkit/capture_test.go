@@ -250,16 +250,7 @@ func TestOpenCaptureIgnoredFlags(t *testing.T) {
 	wav := filepath.Join(dir, "c.wav")
 	writeCapture(t, wav, iq.CF32, 48000, x)
 	sig := filepath.Join(dir, "c.sigmf-meta")
-	cc, err := createCapture(sig, iq.Meta{Datatype: iq.CF32, Rate: 48000, Center: 7.09e6, HasCenter: true}, true)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if _, err := cc.Write(x); err != nil {
-		t.Fatal(err)
-	}
-	if err := cc.Commit(); err != nil {
-		t.Fatal(err)
-	}
+	writeCaptureMeta(t, sig, iq.Meta{Datatype: iq.CF32, Rate: 48000, Center: 7.09e6, HasCenter: true}, x)
 	for _, c := range []struct {
 		args []string
 		want []string

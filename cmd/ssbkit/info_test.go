@@ -17,7 +17,13 @@ import (
 // extension, like createCapture).
 func writeCapture(t *testing.T, path string, dt iq.Datatype, rate float64, x []complex64) {
 	t.Helper()
-	c, err := createCapture(path, iq.Meta{Datatype: dt, Rate: rate}, true)
+	writeCaptureMeta(t, path, iq.Meta{Datatype: dt, Rate: rate}, x)
+}
+
+// writeCaptureMeta is writeCapture with the whole metadata given.
+func writeCaptureMeta(t *testing.T, path string, meta iq.Meta, x []complex64) {
+	t.Helper()
+	c, err := createCapture(path, meta, true)
 	if err != nil {
 		t.Fatal(err)
 	}
