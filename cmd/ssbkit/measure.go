@@ -37,7 +37,9 @@ SSB transmitter (common practice, not a regulation): opposite sideband and
 carrier 40 dB or more down, IMD3 better than −30 dBc, IMD5 better than
 −35 dBc, 99 % bandwidth within 3 kHz for voice, image rejection of the
 recording receiver 30 dB or more. A product or carrier at the noise reads
-as the noise: the figure is then an upper bound.
+as the noise: the figure is then an upper bound. A --sideband that picks
+the weaker side gives a negative suppression and a hint naming the
+stronger side.
 
 Examples:
   ssbkit measure twotone.sigmf-meta
