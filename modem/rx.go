@@ -187,7 +187,9 @@ func NewChannel(cfg RxConfig) (*Channel, error) {
 	filt := KaiserLowpass(half, trans, fw, cfg.AttenDB)
 	t -= float64(len(filt)-1) / 2 / fw
 	up := fa / fw
-	if math.Abs(up-math.Round(up)) < 1e-9 {
+	if math.Abs(up-1) < 1e-9 {
+		// The work rate is the audio rate: no rate converter.
+	} else if math.Abs(up-math.Round(up)) < 1e-9 {
 		ih := KaiserLowpass(fw/2, fw-2*protect, fa, cfg.AttenDB)
 		c.interp = NewInterpolator(ih, int(math.Round(up)))
 		t -= c.interp.Delay() / fa
@@ -317,10 +319,13 @@ func (c *Channel) processFirst(dst []float32, y []complex64) []float32 {
 		x = c.sbuf[i]
 	}
 	c.f = c.filt.Process(c.f, x)
-	if c.interp != nil {
+	switch {
+	case c.interp != nil:
 		c.z = c.interp.Process(c.z, c.f)
-	} else {
+	case c.rs != nil:
 		c.z = c.rs.Process(c.z, c.f)
+	default:
+		c.z = append(c.z[:0], c.f...)
 	}
 	z := c.z
 	n := len(dst)

@@ -691,3 +691,29 @@ func TestSSBDemodMatchesMix(t *testing.T) {
 		}
 	}
 }
+
+// TestAudioRateIsWorkRate covers a plan whose work rate is already the
+// audio rate (48 kHz capture, 8 kHz audio): no rate converter is needed.
+// Unity convention of ../shared/DESIGN.md: a usb tone of magnitude a at +f
+// gives audio amplitude a at f; tolerance from issue 5, ±0.1 dB.
+func TestAudioRateIsWorkRate(t *testing.T) {
+	const tolDB = 0.1
+	const rate, audio = 48000.0, 8000.0
+	const a, f, offset = 0.3, 1000.0, 5000.0
+	cfg := RxConfig{Rate: rate, AudioRate: audio, Offset: offset, Mode: USB}
+	c, err := NewChannel(cfg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if c.Plan().WorkRate != audio {
+		t.Fatalf("work rate %g Hz, want the audio rate %g Hz for this case", c.Plan().WorkRate, audio)
+	}
+	y := decode(t, cfg, complexTone(48000, a, offset+f, rate))
+	if want := 8000 - c.Delay(); len(y) != want { // decode drops the delay
+		t.Fatalf("%d audio samples from 1 s, want %d", len(y), want)
+	}
+	got := toneAmp(y[800:800+6400], f, audio) // 0.8 s: whole periods of 1 kHz
+	if d := db(got / a); math.Abs(d) > tolDB {
+		t.Errorf("amplitude %.5f, want %.5f (%.3f dB)", got, a, d)
+	}
+}
