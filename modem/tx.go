@@ -16,6 +16,10 @@ const (
 	// TestTxDefaultSuppression).
 	DefaultSplitterDesign = "equiripple"
 	DefaultSplitterTaps   = 63
+	// DefaultSuppressionDB is what a splitter whose length is left to the
+	// default must reach over the band: the 60 dB of the design contract
+	// plus a 10 dB margin for the float32 stream (common practice).
+	DefaultSuppressionDB = 70
 	// txAttenDB is the stop-band attenuation of the resamplers and the
 	// band filter: images and aliases stay below the 60 dB suppression
 	// goal by a wide margin.
@@ -31,7 +35,9 @@ type TxConfig struct {
 	// Splitter is the phase-splitter design for usb/lsb (Design, Taps,
 	// Sections; Rate, Low and High are filled in from the internal rate
 	// and the band). A zero Design means DefaultSplitterDesign with
-	// DefaultSplitterTaps ("weaver" for Method "weaver").
+	// DefaultSplitterTaps ("weaver" for Method "weaver"); a length left at
+	// zero starts there and grows until the design reaches
+	// DefaultSuppressionDB over the band.
 	Splitter hilbert.Spec
 	// BandLow, BandHigh is the audio pass band in Hz; both 0 means no band
 	// filter (the band for the splitter is then 100 Hz … 0.45·rate, and
@@ -194,7 +200,8 @@ func newFront(cfg TxConfig) (*front, error) {
 		if sp.Design == "" {
 			sp.Design = DefaultSplitterDesign
 		}
-		if sp.Taps == 0 && sp.Sections == 0 {
+		grow := sp.Taps == 0 && sp.Sections == 0
+		if grow {
 			switch sp.Design {
 			case "allpass":
 				sp.Sections = 6
@@ -209,11 +216,52 @@ func newFront(cfg TxConfig) (*front, error) {
 		if err != nil {
 			return nil, err
 		}
+		// A length left to the default grows until the design meets
+		// DefaultSuppressionDB over the band: a wider band (a lower low
+		// edge above all) needs a longer splitter than 300–2700 Hz does.
+		for grow && hilbert.Analyze(s, low, high).SuppressionMinDB < DefaultSuppressionDB {
+			next, ok := longer(sp)
+			if !ok {
+				break
+			}
+			ns, err := hilbert.New(next)
+			if err != nil {
+				break
+			}
+			sp, s = next, ns
+		}
 		f.splitter = s
 		f.split = s.NewFilter()
 		f.delay += s.Delay()
 	}
 	return f, nil
+}
+
+// longer returns the next longer design of sp's family: about 1.5× the
+// taps (kept odd), or one more all-pass section; false at the limit.
+func longer(sp hilbert.Spec) (hilbert.Spec, bool) {
+	switch sp.Design {
+	case "allpass":
+		if sp.Sections >= hilbert.MaxSections {
+			return sp, false
+		}
+		sp.Sections++
+	case "fft":
+		if sp.Taps*2 > hilbert.MaxFFT {
+			return sp, false
+		}
+		sp.Taps *= 2
+	default:
+		limit := hilbert.MaxTaps
+		if sp.Design == "equiripple" {
+			limit = hilbert.MaxRemez
+		}
+		if sp.Taps >= limit {
+			return sp, false
+		}
+		sp.Taps = min(sp.Taps+sp.Taps/2|1, limit)
+	}
+	return sp, true
 }
 
 // realPart runs the real part of the front: resampling and band filter.

@@ -298,6 +298,41 @@ func TestTxDefaultSuppression(t *testing.T) {
 	}
 }
 
+// TestTxDefaultSuppressionOtherBands: with the length left to the default,
+// a wider band still gets ≥ 60 dB (the design contract's default quality,
+// ../shared/DESIGN.md tx), predicted and measured with a tone 20 Hz inside
+// the low edge, where a short splitter is weakest.
+func TestTxDefaultSuppressionOtherBands(t *testing.T) {
+	const minDB = 60
+	for _, tc := range []struct {
+		method    string
+		low, high float64
+	}{
+		{"phasing", 200, 3000},
+		{"weaver", 200, 3000},
+		{"phasing", 100, 3000},
+	} {
+		cfg := TxConfig{Method: tc.method, AudioRate: 48000, OutRate: 48000, BandLow: tc.low, BandHigh: tc.high}
+		m, err := NewModulator(cfg)
+		if err != nil {
+			t.Fatal(err)
+		}
+		a := hilbert.Analyze(m.Splitter(), tc.low, tc.high)
+		if a.SuppressionMinDB < DefaultSuppressionDB {
+			t.Errorf("%s %g:%g: predicted %.1f dB, want ≥ %d", tc.method, tc.low, tc.high, a.SuppressionMinDB, DefaultSuppressionDB)
+		}
+		f := tc.low + 20
+		x := tones([]float64{f}, 0.5, 48000, 48000)
+		y, _ := modulateAll(t, cfg, x, 4096)
+		seg := y[9600:38400]
+		got := 20 * math.Log10(toneLevel(seg, f, 48000)/toneLevel(seg, -f, 48000))
+		t.Logf("%s %g:%g, %d taps: tone %g Hz measured %.1f dB", tc.method, tc.low, tc.high, m.Splitter().Spec().Taps, f, got)
+		if got < minDB {
+			t.Errorf("%s %g:%g, tone %g Hz: opposite sideband %.1f dB down, want ≥ %d", tc.method, tc.low, tc.high, f, got, minDB)
+		}
+	}
+}
+
 // speech returns a speech-like signal: a gliding 110…180 Hz pitch with
 // harmonics shaped by two moving formants and a 4 Hz syllable envelope
 // (an invented test signal; the shape follows the source-filter picture

@@ -77,7 +77,7 @@ func runTx(e *env, args []string) error {
 	mode := fs.String("mode", "usb", "modulation: usb, lsb, am, dsb")
 	method := fs.String("method", "phasing", "SSB method: phasing, weaver")
 	design := fs.String("design", modem.DefaultSplitterDesign, "phase splitter: "+strings.Join(hilbert.Designs[:7], ", ")+" (with --band off: allpass, 12 sections)")
-	taps := fs.Int("taps", 0, fmt.Sprintf("splitter length: FIR taps (odd), Weaver low-pass taps or FFT block size (default %d; fft 1024)", modem.DefaultSplitterTaps))
+	taps := fs.Int("taps", 0, fmt.Sprintf("splitter length: FIR taps (odd), Weaver low-pass taps or FFT block size (default %d, fft 1024, grown until %g dB over the band)", modem.DefaultSplitterTaps, float64(modem.DefaultSuppressionDB)))
 	sections := fs.Int("sections", 0, "all-pass sections of both paths together (default 6; as in sweep); implies --design allpass")
 	band := fs.String("band", "300:2700", "audio pass band LOW:HIGH in Hz, or off")
 	offset := fs.String("offset", "0", "where the (suppressed) carrier sits in the output baseband, Hz")
