@@ -297,7 +297,7 @@ func SuppressionDB(gain, phaseErrRad float64) float64 {
 
 // Coefficients returns the I and Q path taps of an FIR splitter (the
 // windowed, equiripple and FFT designs, and the Weaver design's equivalent
-// pair of band-pass filters), each indexed from the oldest input: output
+// pair of band-pass filters), in convolution order (k = 0 weights the newest input): output
 // n = Σ_k i[k]·x[n−k] + j·Σ_k q[k]·x[n−k]. For "fft" these are the taps of
 // the FIR applied by overlap-save, without the block latency. ok is false
 // for the all-pass design (see Sections).
