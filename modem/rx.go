@@ -104,13 +104,13 @@ func (c RxConfig) withDefaults() (RxConfig, error) {
 		return c, fmt.Errorf("unknown mode %d", c.Mode)
 	}
 	if c.AudioRate > c.Rate {
-		return c, fmt.Errorf("audio rate %g Hz is above the capture rate %g Hz", c.AudioRate, c.Rate)
+		return c, &configError{fmt.Sprintf("audio rate %g Hz is above the capture rate %g Hz", c.AudioRate, c.Rate), ErrAudioRate}
 	}
 	if !(c.AudioRate >= 2*c.High) {
-		return c, fmt.Errorf("audio rate %g Hz cannot carry a %g Hz audio band", c.AudioRate, c.High)
+		return c, &configError{fmt.Sprintf("audio rate %g Hz cannot carry a %g Hz audio band", c.AudioRate, c.High), ErrAudioRate}
 	}
 	if math.Abs(c.Offset)+c.High > c.Rate/2 {
-		return c, fmt.Errorf("channel at %+g Hz (±%g Hz) lies outside the capture's band ±%g Hz", c.Offset, c.High, c.Rate/2)
+		return c, &configError{fmt.Sprintf("channel at %+g Hz (±%g Hz) lies outside the capture's band ±%g Hz", c.Offset, c.High, c.Rate/2), ErrOutsideCapture}
 	}
 	return c, nil
 }
@@ -157,6 +157,22 @@ type Channel struct {
 	sbuf   [][]complex64 // outputs of the Kaiser stages
 	f, z   []complex64   // channel filter and rate converter outputs
 }
+
+// Configuration errors of the receive chain that callers tell apart with
+// errors.Is (the command turns them into a usage error or names the band).
+var (
+	ErrOutsideCapture = errors.New("modem: channel outside the capture's band")
+	ErrAudioRate      = errors.New("modem: audio rate unsuitable for the channel")
+)
+
+// configError carries its own message and unwraps to one of the sentinels.
+type configError struct {
+	msg  string
+	kind error
+}
+
+func (e *configError) Error() string { return e.msg }
+func (e *configError) Unwrap() error { return e.kind }
 
 // NewChannel returns the receive chain for cfg.
 func NewChannel(cfg RxConfig) (*Channel, error) {

@@ -282,17 +282,17 @@ func bandText(c modem.RxConfig) string {
 // the channel; a channel outside the band says the band.
 func channelError(err error, meta iq.Meta, chans []rxChannel) error {
 	msg := err.Error()
-	if strings.Contains(msg, "outside the capture") {
+	if errors.Is(err, modem.ErrOutsideCapture) {
 		lo, hi := -meta.Rate/2, meta.Rate/2
 		if meta.HasCenter {
 			return fmt.Errorf("%s (capture band %.0f…%.0f Hz)", msg, meta.Center+lo, meta.Center+hi)
 		}
 		return fmt.Errorf("%s (capture band %+.0f…%+.0f Hz around its centre)", msg, lo, hi)
 	}
-	if strings.Contains(msg, "audio rate") {
+	if errors.Is(err, modem.ErrAudioRate) {
 		return usagef("%s", msg)
 	}
-	return errors.New(msg)
+	return err
 }
 
 // parseChannelSpec parses HZ or HZ:MODE.
