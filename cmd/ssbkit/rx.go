@@ -58,7 +58,7 @@ func runRx(e *env, args []string) error {
 	bw := fs.String("bandwidth", "", "audio bandwidth in Hz (default 2700 usb/lsb with a 300 Hz low edge, 5000 am/sam)")
 	agc := fs.String("agc", "medium", "automatic gain control: off, slow, medium, fast")
 	gain := fs.Float64("gain", 0, "fixed gain in dB with --agc off (0 = unity)")
-	ar := fs.String("audio-rate", "48k", "audio sample rate in Hz")
+	ar := fs.String("audio-rate", "48k", "audio sample rate in Hz (default 48k, or the capture's rate when that is lower)")
 	auto := fs.Bool("auto", false, "decode every signal that signal detection finds (as `spectrum --list`)")
 	force := fs.Bool("force", false, "overwrite existing outputs")
 	quiet := fs.BoolP("quiet", "q", false, "no progress bar and no summary")
@@ -160,6 +160,11 @@ func runRx(e *env, args []string) error {
 	}
 	if len(chans) > 1 && !strings.Contains(*out, "{freq}") {
 		return usagef("-o %s: with %d channels the output name must contain {freq}", *out, len(chans))
+	}
+	if !fs.Changed("audio-rate") && meta.Rate < audioRate && meta.Rate >= 8000 && meta.Rate == math.Trunc(meta.Rate) {
+		// A receiver's audio recorded at 44.1 kHz, say: keep its rate
+		// rather than refuse the default.
+		audioRate = meta.Rate
 	}
 	cfgs := make([]modem.RxConfig, len(chans))
 	targets := make([]string, len(chans))

@@ -459,3 +459,34 @@ func TestRxAuto(t *testing.T) {
 		}
 	}
 }
+
+// TestRxLowRateRecording: a receiver's audio recorded at 44.1 kHz decodes
+// with the default --audio-rate, which then falls to the capture's rate
+// (a choice recorded in rx --help); an explicit 48k above it is a usage
+// error (issue 5 bad input). Unity convention as in TestRxRealRecording,
+// tolerance 0.1 dB (issue 5).
+func TestRxLowRateRecording(t *testing.T) {
+	const tolDB = 0.1
+	const rate, a, f = 44100, 0.3, 1000.0
+	dir := t.TempDir()
+	x := make([]float64, rate)
+	for i := range x {
+		x[i] = a * math.Cos(2*math.Pi*f*float64(i)/rate)
+	}
+	in := filepath.Join(dir, "rec.wav")
+	if err := os.WriteFile(in, monoWAVBytes(rate, x), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(dir, "out.wav")
+	if code, _, errs := runCmd(t, "rx", in, "--agc", "off", "-o", out); code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	y := readWAVMono(t, out, rate) // checks the WAV's rate is 44100
+	got := amplitudeAt(y[4410:4410+35280], f, rate)
+	if d := 20 * math.Log10(got/a); math.Abs(d) > tolDB {
+		t.Errorf("amplitude %.5f, want %.5f (%.3f dB)", got, a, d)
+	}
+	if code, _, errs := runCmd(t, "rx", in, "--audio-rate", "48k", "-o", filepath.Join(dir, "x.wav")); code != exitUsage {
+		t.Errorf("--audio-rate 48k on a 44.1 kHz capture: exit %d (%s), want %d", code, errs, exitUsage)
+	}
+}
