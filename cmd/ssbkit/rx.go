@@ -198,9 +198,6 @@ func runRx(e *env, args []string) error {
 	if err != nil {
 		return channelError(err, meta, chans)
 	}
-	if audioRate > meta.Rate {
-		return usagef("--audio-rate %g Hz is above the capture rate %g Hz", audioRate, meta.Rate)
-	}
 
 	files := make([]*outFile, len(chans))
 	defer func() {
