@@ -54,34 +54,47 @@ func (f *FIR) Process(dst, src []complex64) []complex64 {
 		dst = make([]complex64, len(src))
 	}
 	dst = dst[:len(src)]
-	h := f.rev
+	firBlocks(f.buf, dst, src, f.rev, firComplexGo)
+	return dst
+}
+
+// firBlocks filters src into dst (len(dst) == len(src)) in chunks of
+// firChunk, keeping the last len(h)−1 inputs in hist (capacity
+// len(h)−1+firChunk) between calls; kernel computes one chunk's outputs
+// from buf, which holds the history followed by the chunk.
+func firBlocks[T any](hist, dst, src []T, h []float32, kernel func(out, buf []T, h []float32)) {
 	L := len(h)
 	for off := 0; off < len(src); off += firChunk {
 		c := min(firChunk, len(src)-off)
-		buf := append(f.buf[:L-1], src[off:off+c]...)
-		out := dst[off : off+c]
-		for i := range out {
-			w := buf[i : i+L]
-			w = w[:len(h)]
-			var r0, i0, r1, i1 float32
-			k := 0
-			for ; k+1 < len(h); k += 2 {
-				a, b := w[k], w[k+1]
-				ha, hb := h[k], h[k+1]
-				r0 += ha * real(a)
-				i0 += ha * imag(a)
-				r1 += hb * real(b)
-				i1 += hb * imag(b)
-			}
-			if k < len(h) {
-				r0 += h[k] * real(w[k])
-				i0 += h[k] * imag(w[k])
-			}
-			out[i] = complex(r0+r1, i0+i1)
-		}
-		copy(f.buf[:L-1], buf[c:c+L-1])
+		buf := append(hist[:L-1], src[off:off+c]...)
+		kernel(dst[off:off+c], buf, h)
+		copy(hist[:L-1], buf[c:c+L-1])
 	}
-	return dst
+}
+
+// firComplexGo is FIR's inner loop: out[i] = Σₖ h[k]·buf[i+k], h reversed
+// taps, two interleaved float32 sums per component.
+func firComplexGo(out, buf []complex64, h []float32) {
+	L := len(h)
+	for i := range out {
+		w := buf[i : i+L]
+		w = w[:len(h)]
+		var r0, i0, r1, i1 float32
+		k := 0
+		for ; k+1 < len(h); k += 2 {
+			a, b := w[k], w[k+1]
+			ha, hb := h[k], h[k+1]
+			r0 += ha * real(a)
+			i0 += ha * imag(a)
+			r1 += hb * real(b)
+			i1 += hb * imag(b)
+		}
+		if k < len(h) {
+			r0 += h[k] * real(w[k])
+			i0 += h[k] * imag(w[k])
+		}
+		out[i] = complex(r0+r1, i0+i1)
+	}
 }
 
 // RealFIR is the FIR of real samples: y[n] = Σₖ h[k]·x[n−k] in float32.
@@ -108,6 +121,9 @@ func NewRealFIR(taps []float64) *RealFIR {
 	return f
 }
 
+// vec runs the vector kernel with f's padding buffer.
+func (f *RealFIR) vec(out, buf, h []float32) { realFIRVec(out, buf, h, f.pad) }
+
 // Len returns the number of taps.
 func (f *RealFIR) Len() int { return len(f.rev) }
 
@@ -124,18 +140,10 @@ func (f *RealFIR) Process(dst, src []float32) []float32 {
 		dst = make([]float32, len(src))
 	}
 	dst = dst[:len(src)]
-	h := f.rev
-	L := len(h)
-	for off := 0; off < len(src); off += firChunk {
-		c := min(firChunk, len(src)-off)
-		buf := append(f.buf[:L-1], src[off:off+c]...)
-		out := dst[off : off+c]
-		if f.pad != nil {
-			realFIRVec(out, buf, h, f.pad)
-		} else {
-			realFIRGo(out, buf, h)
-		}
-		copy(f.buf[:L-1], buf[c:c+L-1])
+	if f.pad != nil {
+		firBlocks(f.buf, dst, src, f.rev, f.vec)
+	} else {
+		firBlocks(f.buf, dst, src, f.rev, realFIRGo)
 	}
 	return dst
 }
