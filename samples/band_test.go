@@ -57,17 +57,7 @@ func TestBandBlockwise(t *testing.T) {
 	cfg := DefaultBandConfig()
 	cfg.Seconds = 0.5
 	mk := func() *BandSignal { b, _ := NewBand(cfg); return b }
-	read := func(b *BandSignal, bs int) []complex64 {
-		var out []complex64
-		buf := make([]complex64, bs)
-		for {
-			n, err := b.Read(buf)
-			out = append(out, buf[:n]...)
-			if err != nil {
-				return out
-			}
-		}
-	}
+	read := func(b *BandSignal, bs int) []complex64 { return readAll(t, b, bs) }
 	whole := read(mk(), 1<<20)
 	if int64(len(whole)) != mk().Samples() {
 		t.Fatalf("%d samples, want %d", len(whole), mk().Samples())

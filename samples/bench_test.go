@@ -17,7 +17,8 @@ func cproject(x []complex64, f, rate float64) complex128 {
 	return s / complex(float64(len(x)), 0)
 }
 
-func readAll(t *testing.T, b *BenchSignal, block int) []complex64 {
+// readAll reads a capture generator to its end in blocks of block samples.
+func readAll(t *testing.T, b interface{ Read([]complex64) (int, error) }, block int) []complex64 {
 	t.Helper()
 	var out []complex64
 	buf := make([]complex64, block)
