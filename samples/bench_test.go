@@ -18,7 +18,9 @@ func cproject(x []complex64, f, rate float64) complex128 {
 }
 
 // readAll reads a capture generator to its end in blocks of block samples.
-func readAll(t *testing.T, b interface{ Read([]complex64) (int, error) }, block int) []complex64 {
+func readAll(t *testing.T, b interface {
+	Read([]complex64) (int, error)
+}, block int) []complex64 {
 	t.Helper()
 	var out []complex64
 	buf := make([]complex64, block)
