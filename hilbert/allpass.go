@@ -161,12 +161,7 @@ func (f *allpassFilter) Reset() {
 }
 
 func (f *allpassFilter) Process(dst []complex64, src []float32) []complex64 {
-	if dst == nil {
-		dst = make([]complex64, len(src))
-	}
-	if len(dst) != len(src) {
-		panic("hilbert: dst length differs from src")
-	}
+	dst = checkDst(dst, src)
 	for n, x := range src {
 		v := float64(x)
 		for k, a := range f.ai {

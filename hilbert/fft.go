@@ -108,12 +108,7 @@ func (f *fftFilter) Reset() {
 }
 
 func (f *fftFilter) Process(dst []complex64, src []float32) []complex64 {
-	if dst == nil {
-		dst = make([]complex64, len(src))
-	}
-	if len(dst) != len(src) {
-		panic("hilbert: dst length differs from src")
-	}
+	dst = checkDst(dst, src)
 	for n := 0; n < len(src); {
 		c := min(f.s-f.fill, len(src)-n)
 		base := f.l - 1 + f.fill

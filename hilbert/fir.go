@@ -203,12 +203,7 @@ type firFilter struct {
 func (f *firFilter) Reset() { clear(f.buf) }
 
 func (f *firFilter) Process(dst []complex64, src []float32) []complex64 {
-	if dst == nil {
-		dst = make([]complex64, len(src))
-	}
-	if len(dst) != len(src) {
-		panic("hilbert: dst length differs from src")
-	}
+	dst = checkDst(dst, src)
 	hist := 2 * f.m
 	for off := 0; off < len(src); off += firChunk {
 		c := min(firChunk, len(src)-off)

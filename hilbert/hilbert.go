@@ -327,3 +327,15 @@ func Sections(s Splitter) (i, q []float64, ok bool) {
 	}
 	return append([]float64(nil), t.ai...), append([]float64(nil), t.aq...), true
 }
+
+// checkDst returns dst, allocated if nil, for a Filter.Process of src. It
+// panics if a non-nil dst differs in length from src.
+func checkDst(dst []complex64, src []float32) []complex64 {
+	if dst == nil {
+		return make([]complex64, len(src))
+	}
+	if len(dst) != len(src) {
+		panic("hilbert: dst length differs from src")
+	}
+	return dst
+}
