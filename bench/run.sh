@@ -32,29 +32,7 @@ insamples=$(( $(stat -c %s "$cap") / 2 ))
 # warm the page cache so that neither side pays the first read
 cat "$cap" >/dev/null
 
-# timed NAME OUTFILE CMD... : runs CMD under GNU time, prints one line
-# "NAME  seconds  MS/s  CPU seconds  peak-MB" and appends "seconds kB
-# cpu-seconds" to OUTFILE.
-timed() {
-	local name=$1 out=$2
-	shift 2
-	/usr/bin/time -f '%e %M %U %S' -o "$work/time" "$@" >/dev/null 2>"$work/err" || {
-		cat "$work/err" >&2
-		return 1
-	}
-	read -r secs kb us ss <"$work/time"
-	local cpu
-	cpu=$(awk -v u="$us" -v s="$ss" 'BEGIN { printf "%.2f", u + s }')
-	echo "$secs $kb $cpu" >>"$out"
-	awk -v n="$name" -v s="$secs" -v k="$kb" -v c="$cpu" -v ns="$insamples" \
-		'BEGIN { printf "  %-30s %6.2f s  %7.1f MS/s  %6.2f s CPU  %6.1f MB peak\n", n, s, ns / s / 1e6, c, k / 1024 }'
-}
-
-# summary FILE: best (lowest) wall time, largest peak and lowest CPU time
-# of the runs.
-best() { sort -n "$1" | head -1 | cut -d' ' -f1; }
-peak() { sort -k2 -n "$1" | tail -1 | cut -d' ' -f2; }
-bestcpu() { sort -k3 -n "$1" | head -1 | cut -d' ' -f3; }
+nsamples=$insamples unit="MS/s"
 
 # ---------------------------------------------------------------- rx
 section_rx() {

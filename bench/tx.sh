@@ -25,22 +25,7 @@ audio=$DATA/audio_60s.wav
 cat "$audio" >/dev/null
 outsamples=144000000 # 60 s at 2.4 MS/s
 
-timed() {
-	local name=$1 out=$2
-	shift 2
-	/usr/bin/time -f '%e %M %U %S' -o "$work/time" "$@" >/dev/null 2>"$work/err" || {
-		cat "$work/err" >&2
-		return 1
-	}
-	read -r secs kb usr sys <"$work/time"
-	echo "$secs $kb $(awk -v u="$usr" -v s="$sys" 'BEGIN { print u + s }')" >>"$out"
-	awk -v n="$name" -v s="$secs" -v k="$kb" -v u="$usr" -v y="$sys" -v ns="$outsamples" \
-		'BEGIN { printf "  %-34s %6.2f s  %7.1f MS/s out  CPU %5.2f s (user %.2f, sys %.2f)  %6.1f MB peak\n", n, s, ns / s / 1e6, u + y, u, y, k / 1024 }'
-}
-best() { sort -n "$1" | head -1 | cut -d' ' -f1; }
-bestcpu() { sort -k3 -n "$1" | head -1 | cut -d' ' -f3; }
-median() { sort -n "$1" | awk '{ v[NR] = $1 } END { print (NR % 2) ? v[(NR + 1) / 2] : (v[NR / 2] + v[NR / 2 + 1]) / 2 }'; }
-peak() { sort -k2 -n "$1" | tail -1 | cut -d' ' -f2; }
+nsamples=$outsamples unit="MS/s out"
 
 echo "audio: $audio; $(nproc) cores; load: $(cut -d' ' -f1-3 /proc/loadavg)"
 for offset in 0 100000; do
