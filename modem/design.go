@@ -3,6 +3,9 @@ package modem
 import (
 	"math"
 	"math/cmplx"
+	"slices"
+	"sync"
+	"sync/atomic"
 
 	"ssbkit/hilbert"
 )
@@ -85,6 +88,32 @@ func KaiserLowpass(cutoff, transition, rate, attenDB float64) []float64 {
 // (cycles per sample) meeting attenDB in both bands, as KaiserLowpass
 // describes.
 func kaiserMeet(fc, tw, attenDB float64) []float64 {
+	k := kaiserKey{fc, tw, attenDB}
+	if h, ok := kaiserCache.Load(k); ok {
+		return slices.Clone(h.([]float64))
+	}
+	h := kaiserDesign(fc, tw, attenDB)
+	if kaiserCached.Add(1) <= kaiserCacheMax {
+		kaiserCache.Store(k, slices.Clone(h))
+	}
+	return h
+}
+
+// The receive chains of several channels of one capture use the same
+// filters, and kaiserMeet evaluates hundreds of responses per design
+// (about 1 ms each), so designs are remembered, up to kaiserCacheMax of
+// them per process.
+var (
+	kaiserCache  sync.Map // kaiserKey → []float64
+	kaiserCached atomic.Int64
+)
+
+const kaiserCacheMax = 256
+
+type kaiserKey struct{ fc, tw, atten float64 }
+
+// kaiserDesign is kaiserMeet without the cache.
+func kaiserDesign(fc, tw, attenDB float64) []float64 {
 	delta := math.Pow(10, -attenDB/20)
 	var h []float64
 	for a, i := attenDB, 0; i < 40; a, i = a+0.25, i+1 {

@@ -127,3 +127,20 @@ func TestKaiserBandpass(t *testing.T) {
 		}
 	}
 }
+
+// TestKaiserCache checks that a remembered design is the same as a fresh
+// one and that callers get their own copy.
+func TestKaiserCache(t *testing.T) {
+	a := KaiserLowpass(3000, 1000, 48000, 80)
+	want := kaiserDesign(3000.0/48000, 1000.0/48000, 80)
+	a[0] = 42
+	b := KaiserLowpass(3000, 1000, 48000, 80)
+	if len(b) != len(want) {
+		t.Fatalf("cached design has %d taps, fresh %d", len(b), len(want))
+	}
+	for i := range b {
+		if b[i] != want[i] {
+			t.Fatalf("tap %d: cached %g, fresh %g", i, b[i], want[i])
+		}
+	}
+}
