@@ -24,3 +24,11 @@ func dotRealAVX2(dst []complex64, x *complex64, step int, hd *float32, full int,
 //
 //go:noescape
 func interpAVX2(dst *complex64, x *complex64, n int, taps *float32, k, full int, mask *[8]int32, part, stride int)
+
+// dotSymAVX2 is the symmetric form of ShiftDecimator.blockSym on the
+// layout of symTaps, two outputs a pass: n outputs from windows of L taps
+// at x, x+step, …, output 2i multiplied by q₀·r²ⁱ and output 2i+1 by
+// q₁·r²ⁱ, q = (q₀, q₁) as float64 (re, im, re, im). hi is 8·(L−4).
+//
+//go:noescape
+func dotSymAVX2(dst *complex64, n int, x *complex64, step int, pa, pb *float32, groups, hi int, q *[4]float64, r2 complex128)

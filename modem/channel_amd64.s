@@ -315,3 +315,116 @@ inext:
 idone:
 	VZEROUPPER
 	RET
+
+// func dotSymAVX2(dst *complex64, n int, x *complex64, step int, pa, pb *float32, groups, hi int, q *[4]float64, r2 complex128)
+//
+// The symmetric form of ShiftDecimator.blockSym, two outputs per pass:
+// for output m and pair slot k (lo = x[m·step + k], hi = x[m·step + L−1−k])
+//
+//	dst[m] = qₘ·Σₖ (pa[k]·(lo + hi) − j·pb[k]·(hi − lo)),
+//
+// pa and pb duplicated in the kernel layout, pb negated so that the end is
+// the same VPERMILPS + VADDSUBPS as dotComplexAVX2's. Slots come in groups
+// of four; the four hi samples of a group are loaded from x + hi − 32·g
+// (hi = 8·(L−4)) and reversed by VPERMPD. Each pass makes outputs 2i and
+// 2i+1 from one read of the taps, then rotates both by the phasors
+// q = (q₂ᵢ, q₂ᵢ₊₁) (float64, Y8), advanced by r² after each pass, so the
+// phasor recursion is half as long a chain as one per output. An odd last
+// output runs as a pass whose second output repeats the first window and
+// is not stored, so every output has the same arithmetic wherever the
+// blocks of a stream begin.
+TEXT ·dotSymAVX2(SB), NOSPLIT, $0-88
+	MOVQ dst+0(FP), DI
+	MOVQ n+8(FP), CX
+	MOVQ x+16(FP), SI
+	MOVQ step+24(FP), DX
+	SHLQ $3, DX                // bytes between outputs
+	MOVQ pa+32(FP), R8
+	MOVQ pb+40(FP), R9
+	MOVQ groups+48(FP), BX
+	SHLQ $5, BX                // bytes of each tap array
+	MOVQ hi+56(FP), R12
+	MOVQ q+64(FP), AX
+	TESTQ CX, CX
+	JZ   sdone
+	VMOVUPD      (AX), Y8
+	VBROADCASTSD r2_real+72(FP), Y9
+	VBROADCASTSD r2_imag+80(FP), Y10
+
+souter:
+	CMPQ CX, $1
+	JNE  spair
+	XORQ DX, DX                // the odd last output: the second window repeats the first
+
+spair:
+	VXORPS Y0, Y0, Y0
+	VXORPS Y1, Y1, Y1
+	VXORPS Y2, Y2, Y2
+	VXORPS Y3, Y3, Y3
+	XORQ   AX, AX
+	MOVQ   SI, R14             // lo, output 2i
+	LEAQ   (SI)(R12*1), R10    // hi, output 2i
+	LEAQ   (SI)(DX*1), R11     // lo, output 2i+1
+	LEAQ   (R10)(DX*1), R13    // hi, output 2i+1
+
+sinner:
+	VMOVUPS     (R14), Y4
+	VPERMPD     $0x1B, (R10), Y5
+	VADDPS      Y5, Y4, Y6
+	VSUBPS      Y4, Y5, Y5
+	VFMADD231PS (R8)(AX*1), Y6, Y0
+	VFMADD231PS (R9)(AX*1), Y5, Y1
+	VMOVUPS     (R11), Y11
+	VPERMPD     $0x1B, (R13), Y12
+	VADDPS      Y12, Y11, Y13
+	VSUBPS      Y11, Y12, Y12
+	VFMADD231PS (R8)(AX*1), Y13, Y2
+	VFMADD231PS (R9)(AX*1), Y12, Y3
+	ADDQ        $32, R14
+	ADDQ        $32, R11
+	SUBQ        $32, R10
+	SUBQ        $32, R13
+	ADDQ        $32, AX
+	CMPQ        AX, BX
+	JLT         sinner
+
+	// (A.re − B.im, A.im + B.re) for both outputs, then the sums of
+	// their four complex lanes, as (s₂ᵢ, s₂ᵢ₊₁) in X4
+	VPERMILPS    $0xB1, Y1, Y1
+	VADDSUBPS    Y1, Y0, Y0
+	VPERMILPS    $0xB1, Y3, Y3
+	VADDSUBPS    Y3, Y2, Y2
+	VPERM2F128   $0x20, Y2, Y0, Y4
+	VPERM2F128   $0x31, Y2, Y0, Y5
+	VADDPS       Y5, Y4, Y4
+	VPERMILPD    $5, Y4, Y5
+	VADDPS       Y5, Y4, Y4
+	VEXTRACTF128 $1, Y4, X5
+	VUNPCKLPD    X5, X4, X4
+
+	// rotate by q in float32, then q ← q·r² in float64
+	VCVTPD2PSY     Y8, X5
+	VMOVSLDUP      X5, X6
+	VMOVSHDUP      X5, X7
+	VPERMILPS      $0xB1, X4, X5
+	VMULPS         X7, X5, X5
+	VFMADDSUB213PS X5, X6, X4
+	CMPQ           CX, $1
+	JEQ            sone
+	VMOVUPS        X4, (DI)
+	VPERMILPD      $5, Y8, Y5
+	VMULPD         Y10, Y5, Y5
+	VFMADDSUB213PD Y5, Y9, Y8
+
+	LEAQ (SI)(DX*2), SI
+	ADDQ $16, DI
+	SUBQ $2, CX
+	JNZ  souter
+	JMP  sdone
+
+sone:
+	VMOVSD X4, (DI)
+
+sdone:
+	VZEROUPPER
+	RET

@@ -17,3 +17,7 @@ func dotRealAVX2(dst []complex64, x *complex64, step int, hd *float32, full int,
 func interpAVX2(dst *complex64, x *complex64, n int, taps *float32, k, full int, mask *[8]int32, part, stride int) {
 	panic("modem: no assembly kernels in this build")
 }
+
+func dotSymAVX2(dst *complex64, n int, x *complex64, step int, pa, pb *float32, groups, hi int, q *[4]float64, r2 complex128) {
+	panic("modem: no assembly kernels in this build")
+}

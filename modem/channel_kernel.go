@@ -195,3 +195,45 @@ func (t *interpTaps) interp(dst, x []complex64) {
 	}
 	interpAVX2(&dst[0], &x[0], n, &t.taps[0], t.k, t.full, &kernelMasks[t.u%4], t.part, 8*t.u)
 }
+
+// symTaps holds a ShiftDecimator's symmetric taps (see blockSym) in the
+// layout of dotSymAVX2: pair slot k holds pa[k] and −pb[k], each twice,
+// the centre tap of an odd length as one more slot (pa = h[c]/2, pb = 0,
+// its two samples being the same), zero-padded to whole groups of four.
+type symTaps struct {
+	l, groups int
+	pa, pb    []float32
+}
+
+// newSymTaps returns the kernel layout of the pair coefficients pa, pb
+// and centre tap hc of l symmetric taps, or nil when the groups of four
+// slots would reach past the window (l < 4 or l = 6).
+func newSymTaps(pa, pb []float32, hc float32, l int) *symTaps {
+	slots := len(pa) + l%2
+	g := (slots + 3) / 4
+	if 4*g > l {
+		return nil
+	}
+	t := &symTaps{l: l, groups: g, pa: make([]float32, 8*g), pb: make([]float32, 8*g)}
+	for k := range pa {
+		t.pa[2*k], t.pa[2*k+1] = pa[k], pa[k]
+		t.pb[2*k], t.pb[2*k+1] = -pb[k], -pb[k]
+	}
+	if l%2 == 1 {
+		k := len(pa)
+		t.pa[2*k], t.pa[2*k+1] = hc/2, hc/2
+	}
+	return t
+}
+
+// dotRotate computes dst[m] = p·rᵐ·(the symmetric sum of window m) by
+// dotSymAVX2. It panics if x is too short.
+func (t *symTaps) dotRotate(dst, x []complex64, step int, p, r complex128) {
+	checkWindow(dst, x, step, t.l)
+	if len(dst) == 0 {
+		return
+	}
+	p1 := p * r
+	q := [4]float64{real(p), imag(p), real(p1), imag(p1)}
+	dotSymAVX2(&dst[0], len(dst), &x[0], step, &t.pa[0], &t.pb[0], t.groups, 8*(t.l-4), &q, r*r)
+}

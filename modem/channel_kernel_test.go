@@ -273,3 +273,50 @@ func TestStagesBlockwise(t *testing.T) {
 		t.Errorf("%v allocations per block, want 0", a)
 	}
 }
+
+// TestSymKernelMatchesGo compares dotSymAVX2 with blockSym, its Go twin,
+// for odd and even tap counts, every output count parity and several
+// steps, through ShiftDecimator.Block (the kernel then the Go loop on the
+// same decimator).
+func TestSymKernelMatchesGo(t *testing.T) {
+	if !haveKernels {
+		t.Skip("no assembly kernels in this build (purego, another architecture or no AVX2/FMA)")
+	}
+	r := rand.New(rand.NewPCG(9, 10))
+	for _, l := range []int{8, 9, 13, 16, 19, 31, 32, 53, 63} {
+		for _, d := range []int{1, 5, 16} {
+			taps := make([]float64, l)
+			for k := range (l + 1) / 2 {
+				v := r.NormFloat64()
+				taps[k], taps[l-1-k] = v, v
+			}
+			s := NewShiftDecimator(taps, d, 0, 123.4e3, 2.4e6)
+			if s.st == nil {
+				t.Fatalf("L=%d: no symmetric kernel layout", l)
+			}
+			for _, cnt := range []int{1, 2, 7, 64} {
+				nb := (cnt-1)*d + 1
+				win := testSignal(l-1+nb, uint64(l*100+d*10+cnt))
+				a := int64(r.IntN(1 << 20))
+				a -= a % int64(d)
+				got := s.Block(nil, win, a)
+				want := s.blockSym(nil, win, a, a, int64(nb))
+				if len(got) != cnt || len(want) != cnt {
+					t.Fatalf("L=%d d=%d: %d and %d outputs, want %d", l, d, len(got), len(want), cnt)
+				}
+				for m := range cnt {
+					var mag float64
+					for k := range l {
+						v := win[m*d+k]
+						mag += 2 * math.Abs(taps[k]) * (math.Abs(float64(real(v))) + math.Abs(float64(imag(v))))
+					}
+					// kernelBound: Higham, 2nd ed., eq. 3.5 (from memory)
+					tol := kernelBound(l+2, mag) + rotationBound*cabs(want[m])
+					if e := cabs(got[m] - want[m]); !(e <= tol) {
+						t.Errorf("L=%d d=%d n=%d output %d: kernel %v, Go %v (difference %.3g > %.3g)", l, d, cnt, m, got[m], want[m], e, tol)
+					}
+				}
+			}
+		}
+	}
+}

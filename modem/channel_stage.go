@@ -44,6 +44,7 @@ type ShiftDecimator struct {
 	buf    []complex64 // history (l−1) then the current chunk
 	pos    int64       // absolute index of the next input sample
 	kt     *kernelTaps // cr, ci for the assembly kernel (nil without it)
+	st     *symTaps    // pa, pb for the symmetric assembly kernel (nil without it)
 }
 
 // NewShiftDecimator returns a decimator by d with the given low-pass taps
@@ -85,6 +86,9 @@ func NewShiftDecimator(taps []float64, d, phase int, freq, rate float64) *ShiftD
 	}
 	if haveKernels {
 		s.kt = newKernelTaps(s.cr, s.ci)
+		if s.sym {
+			s.st = newSymTaps(s.pa, s.pb, s.hc, l)
+		}
 	}
 	s.buf = make([]complex64, l-1, l-1+stageChunk)
 	return s
@@ -147,10 +151,28 @@ func (s *ShiftDecimator) Block(dst, win []complex64, a int64) []complex64 {
 	if n >= a+nb {
 		return dst
 	}
-	if s.sym && s.kt == nil {
+	switch {
+	case s.st != nil:
+		return s.blockSymKernel(dst, win, a, n, nb)
+	case s.sym && s.kt == nil:
 		return s.blockSym(dst, win, a, n, nb)
 	}
 	return s.blockDot(dst, win, a, n, nb)
+}
+
+// blockSymKernel is blockSym by the assembly kernel.
+func (s *ShiftDecimator) blockSymKernel(dst, win []complex64, a, n, nb int64) []complex64 {
+	j0 := int(n - a)
+	cnt := (int(nb)-1-j0)/s.d + 1
+	k := len(dst)
+	if cap(dst)-k < cnt {
+		nd := make([]complex64, k, 2*(k+cnt))
+		copy(nd, dst)
+		dst = nd
+	}
+	p := phasor(uint64(n)*s.step) * s.post
+	s.st.dotRotate(dst[k:k+cnt], win[j0:], s.d, p, s.rot)
+	return dst[:k+cnt]
 }
 
 // blockDot is Block as the dot products of the folded taps with every
