@@ -32,3 +32,10 @@ func interpAVX2(dst *complex64, x *complex64, n int, taps *float32, k, full int,
 //
 //go:noescape
 func dotSymAVX2(dst *complex64, n int, x *complex64, step int, pa, pb *float32, groups, hi int, q *[4]float64, r2 complex128)
+
+// dotSym4AVX2 is dotSymAVX2 for four channels whose windows coincide, on
+// the layout of shiftGroup: n outputs of each channel c to out[c], output
+// m rotated by q_c·r_cᵐ.
+//
+//go:noescape
+func dotSym4AVX2(out *[4]*complex64, n int, x *complex64, step int, taps *float32, groups, hi int, q *[8]float64, rd *[16]float64)

@@ -428,3 +428,122 @@ sone:
 sdone:
 	VZEROUPPER
 	RET
+
+// func dotSym4AVX2(out *[4]*complex64, n int, x *complex64, step int, taps *float32, groups, hi int, q *[8]float64, rd *[16]float64)
+//
+// dotSymAVX2 for four channels whose windows coincide (same length,
+// decimation and phase; their taps and phasors differ): the pair sums
+// lo + hi and differences hi − lo of each group are formed once and feed
+// the eight accumulators (A, B of channels 0…3, Y0…Y7). taps holds, per
+// group of four slots, pa then −pb of channel 0, then of channels 1, 2,
+// 3 (256 bytes a group). The sums of the four complex lanes are added in
+// the order of dotSymAVX2 ((l₀ + l₂) + (l₁ + l₃)), so a channel's sums are
+// the same as from that kernel. The phasors are float64 in Y12 = (q₀, q₂)
+// and Y13 = (q₁, q₃), advanced by their own rotations, rd = (Re r₀, Re r₀,
+// Re r₂, Re r₂, Im r₀, Im r₀, Im r₂, Im r₂, then the same for r₁, r₃).
+TEXT ·dotSym4AVX2(SB), NOSPLIT, $0-72
+	MOVQ out+0(FP), AX
+	MOVQ 0(AX), R11
+	MOVQ 8(AX), R12
+	MOVQ 16(AX), R13
+	MOVQ 24(AX), DI
+	MOVQ n+8(FP), CX
+	MOVQ x+16(FP), SI
+	MOVQ step+24(FP), DX
+	SHLQ $3, DX                // bytes between outputs
+	MOVQ taps+32(FP), R8
+	MOVQ groups+40(FP), BX
+	SHLQ $8, BX                // bytes of taps
+	MOVQ q+56(FP), AX
+	TESTQ CX, CX
+	JZ   fdone
+	VMOVUPD (AX), Y12
+	VMOVUPD 32(AX), Y13
+	XORQ    R9, R9             // output index
+
+fouter:
+	VXORPS Y0, Y0, Y0
+	VXORPS Y1, Y1, Y1
+	VXORPS Y2, Y2, Y2
+	VXORPS Y3, Y3, Y3
+	VXORPS Y4, Y4, Y4
+	VXORPS Y5, Y5, Y5
+	VXORPS Y6, Y6, Y6
+	VXORPS Y7, Y7, Y7
+	XORQ   AX, AX
+	MOVQ   SI, R14             // lo
+	MOVQ   hi+48(FP), R10
+	ADDQ   SI, R10             // hi
+
+finner:
+	VMOVUPS     (R14), Y8
+	VPERMPD     $0x1B, (R10), Y9
+	VADDPS      Y9, Y8, Y10
+	VSUBPS      Y8, Y9, Y9
+	VFMADD231PS (R8)(AX*1), Y10, Y0
+	VFMADD231PS 32(R8)(AX*1), Y9, Y1
+	VFMADD231PS 64(R8)(AX*1), Y10, Y2
+	VFMADD231PS 96(R8)(AX*1), Y9, Y3
+	VFMADD231PS 128(R8)(AX*1), Y10, Y4
+	VFMADD231PS 160(R8)(AX*1), Y9, Y5
+	VFMADD231PS 192(R8)(AX*1), Y10, Y6
+	VFMADD231PS 224(R8)(AX*1), Y9, Y7
+	ADDQ        $32, R14
+	SUBQ        $32, R10
+	ADDQ        $256, AX
+	CMPQ        AX, BX
+	JLT         finner
+
+	// C = (A.re − B.im, A.im + B.re) per channel, in Y0, Y2, Y4, Y6
+	VPERMILPS  $0xB1, Y1, Y1
+	VADDSUBPS  Y1, Y0, Y0
+	VPERMILPS  $0xB1, Y3, Y3
+	VADDSUBPS  Y3, Y2, Y2
+	VPERMILPS  $0xB1, Y5, Y5
+	VADDSUBPS  Y5, Y4, Y4
+	VPERMILPS  $0xB1, Y7, Y7
+	VADDSUBPS  Y7, Y6, Y6
+	// lane sums: (a, b) = (l₀ + l₂, l₁ + l₃) per channel, then a + b,
+	// giving (s₀, s₂ | s₁, s₃) in Y11
+	VPERM2F128 $0x20, Y2, Y0, Y8
+	VPERM2F128 $0x31, Y2, Y0, Y9
+	VADDPS     Y9, Y8, Y8      // (a₀, b₀ | a₁, b₁)
+	VPERM2F128 $0x20, Y6, Y4, Y10
+	VPERM2F128 $0x31, Y6, Y4, Y11
+	VADDPS     Y11, Y10, Y10   // (a₂, b₂ | a₃, b₃)
+	VUNPCKLPD  Y10, Y8, Y11    // (a₀, a₂ | a₁, a₃)
+	VUNPCKHPD  Y10, Y8, Y9     // (b₀, b₂ | b₁, b₃)
+	VADDPS     Y9, Y11, Y11
+
+	// rotate by (q₀, q₂ | q₁, q₃) in float32
+	VCVTPD2PSY     Y12, X14
+	VCVTPD2PSY     Y13, X15
+	VINSERTF128    $1, X15, Y14, Y14
+	VMOVSLDUP      Y14, Y15
+	VMOVSHDUP      Y14, Y14
+	VPERMILPS      $0xB1, Y11, Y10
+	VMULPS         Y14, Y10, Y10
+	VFMADDSUB213PS Y10, Y15, Y11
+	VMOVSD         X11, (R11)(R9*8)
+	VMOVHPS        X11, (R13)(R9*8)
+	VEXTRACTF128   $1, Y11, X10
+	VMOVSD         X10, (R12)(R9*8)
+	VMOVHPS        X10, (DI)(R9*8)
+
+	// q ← q·r in float64
+	MOVQ           rd+64(FP), AX
+	VPERMILPD      $5, Y12, Y8
+	VMULPD         32(AX), Y8, Y8
+	VFMADDSUB132PD (AX), Y8, Y12
+	VPERMILPD      $5, Y13, Y9
+	VMULPD         96(AX), Y9, Y9
+	VFMADDSUB132PD 64(AX), Y9, Y13
+
+	ADDQ DX, SI
+	INCQ R9
+	DECQ CX
+	JNZ  fouter
+
+fdone:
+	VZEROUPPER
+	RET

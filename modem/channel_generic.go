@@ -21,3 +21,7 @@ func interpAVX2(dst *complex64, x *complex64, n int, taps *float32, k, full int,
 func dotSymAVX2(dst *complex64, n int, x *complex64, step int, pa, pb *float32, groups, hi int, q *[4]float64, r2 complex128) {
 	panic("modem: no assembly kernels in this build")
 }
+
+func dotSym4AVX2(out *[4]*complex64, n int, x *complex64, step int, taps *float32, groups, hi int, q *[8]float64, rd *[16]float64) {
+	panic("modem: no assembly kernels in this build")
+}

@@ -320,3 +320,49 @@ func TestSymKernelMatchesGo(t *testing.T) {
 		}
 	}
 }
+
+// TestShiftGroupMatchesBlock compares the four-channel kernel with each
+// channel's own ShiftDecimator.Block, for one to four channels of the
+// same geometry at different frequencies, several block starts and
+// output counts of every parity.
+func TestShiftGroupMatchesBlock(t *testing.T) {
+	if !haveKernels {
+		t.Skip("no assembly kernels in this build (purego, another architecture or no AVX2/FMA)")
+	}
+	freqs := []float64{-300e3, 121.5e3, 501.5e3, 701.5e3}
+	for _, p := range []struct{ d, m, phase int }{{16, 2, 0}, {16, 2, 11}, {5, 3, 2}, {10, 2, 9}} {
+		taps := combTaps(p.d, p.m)
+		for nch := 1; nch <= 4; nch++ {
+			sds := make([]*ShiftDecimator, nch)
+			for c := range sds {
+				sds[c] = NewShiftDecimator(taps, p.d, p.phase, freqs[c], 2.4e6)
+			}
+			g := newShiftGroup(sds)
+			if g == nil {
+				t.Fatalf("d=%d m=%d: no group", p.d, p.m)
+			}
+			for _, nb := range []int{1, 17, 100, 4096} {
+				l := len(taps)
+				win := testSignal(l-1+nb, uint64(nb*10+nch))
+				for _, a := range []int64{0, 3, 1<<33 + 7} {
+					outs := make([][]complex64, nch)
+					g.block(outs, win, a)
+					for c, s := range sds {
+						want := s.Block(nil, win, a)
+						if len(outs[c]) != len(want) {
+							t.Fatalf("d=%d ch %d/%d nb=%d a=%d: %d outputs, want %d", p.d, c, nch, nb, a, len(outs[c]), len(want))
+						}
+						for m := range want {
+							// both kernels sum alike; only the phasor
+							// recursions differ (rotationBound)
+							tol := rotationBound*cabs(want[m]) + 1e-12
+							if e := cabs(outs[c][m] - want[m]); !(e <= tol) {
+								t.Fatalf("d=%d ch %d/%d nb=%d a=%d output %d: group %v, alone %v (difference %.3g)", p.d, c, nch, nb, a, m, outs[c][m], want[m], e)
+							}
+						}
+					}
+				}
+			}
+		}
+	}
+}

@@ -232,17 +232,30 @@ func (r *Receiver) run(src SampleReader, raw io.Reader, ss int, decode func([]co
 	}()
 
 	// Workers: the first stage of every channel.
+	units := r.firstUnits()
 	for range workers {
 		go func() {
+			var gouts [4][]complex64
 			for j := range work {
 				if raw != nil {
 					clear(j.win[:j.from])
 					decode(j.win[j.from:j.to], j.raw[j.from*ss:j.to*ss])
 					clear(j.win[j.to : hist+j.n])
 				}
-				for i, c := range r.chans {
-					l := c.first.l
-					j.outs[i] = c.first.Block(j.outs[i][:0], j.win[hist-(l-1):hist+j.n], j.a)
+				for _, u := range units {
+					first := r.chans[u.idx[0]].first
+					win := j.win[hist-(first.l-1) : hist+j.n]
+					if u.g == nil {
+						j.outs[u.idx[0]] = first.Block(j.outs[u.idx[0]][:0], win, j.a)
+						continue
+					}
+					for k, i := range u.idx {
+						gouts[k] = j.outs[i][:0]
+					}
+					u.g.block(gouts[:len(u.idx)], win, j.a)
+					for k, i := range u.idx {
+						j.outs[i] = gouts[k]
+					}
 				}
 				close(j.done)
 			}
@@ -298,4 +311,56 @@ func (r *Receiver) run(src SampleReader, raw io.Reader, ss int, decode func([]co
 	}
 	wg.Wait()
 	return firstErr
+}
+
+// firstUnit is one or more channels whose first stages a worker runs
+// together: a shiftGroup, or a single channel when g is nil.
+type firstUnit struct {
+	idx []int // channel indices
+	g   *shiftGroup
+}
+
+// firstUnits groups the channels whose first-stage windows coincide into
+// shiftGroups of four, and of three for what is left (the kernel always
+// computes four: three cost less together than alone, two do not); the
+// other channels run alone.
+func (r *Receiver) firstUnits() []firstUnit {
+	type key struct{ l, d, phase int }
+	var order []key
+	same := map[key][]int{}
+	var units []firstUnit
+	for i, c := range r.chans {
+		f := c.first
+		if f.st == nil || !haveKernels {
+			units = append(units, firstUnit{idx: []int{i}})
+			continue
+		}
+		k := key{f.l, f.d, f.phase}
+		if _, ok := same[k]; !ok {
+			order = append(order, k)
+		}
+		same[k] = append(same[k], i)
+	}
+	for _, k := range order {
+		idx := same[k]
+		for len(idx) >= 3 {
+			n := min(4, len(idx))
+			sds := make([]*ShiftDecimator, n)
+			for m, i := range idx[:n] {
+				sds[m] = r.chans[i].first
+			}
+			if g := newShiftGroup(sds); g != nil {
+				units = append(units, firstUnit{idx: idx[:n], g: g})
+			} else {
+				for _, i := range idx[:n] {
+					units = append(units, firstUnit{idx: []int{i}})
+				}
+			}
+			idx = idx[n:]
+		}
+		for _, i := range idx {
+			units = append(units, firstUnit{idx: []int{i}})
+		}
+	}
+	return units
 }
