@@ -57,8 +57,8 @@ func (r *Receiver) Channels() []*Channel { return r.chans }
 // rxJob is one block of capture samples with the history the first stages
 // need before it.
 type rxJob struct {
-	win   []complex64 // hist samples before a, then n samples from a
-	raw   []byte      // RunRaw: the encoded samples of win
+	win   []complex64 // Run: hist samples before a, then n samples from a
+	raw   []byte      // RunRaw: the encoded samples (hist before a, then n)
 	from  int         // RunRaw: win[from:to] is decoded from raw, the rest is 0
 	to    int
 	a     int64
@@ -114,9 +114,11 @@ func (r *Receiver) run(src SampleReader, raw io.Reader, ss int, decode func([]co
 	inflight := 2*workers + 4
 	free := make(chan *rxJob, inflight)
 	for range inflight {
-		j := &rxJob{win: make([]complex64, hist+block), outs: make([][]complex64, nch)}
+		j := &rxJob{outs: make([][]complex64, nch)}
 		if raw != nil {
 			j.raw = make([]byte, (hist+block)*ss)
+		} else {
+			j.win = make([]complex64, hist+block)
 		}
 		for i, c := range r.chans {
 			j.outs[i] = make([]complex64, 0, c.first.MaxOut(block))
@@ -231,31 +233,39 @@ func (r *Receiver) run(src SampleReader, raw io.Reader, ss int, decode func([]co
 		}
 	}()
 
-	// Workers: the first stage of every channel.
+	// Workers: the first stage of every channel. Encoded samples are
+	// decoded rawChunk at a time into a small buffer of the worker's, which
+	// stays in cache while the first stages read it.
 	units := r.firstUnits()
 	for range workers {
 		go func() {
 			var gouts [4][]complex64
+			var w []complex64
+			if raw != nil {
+				w = make([]complex64, hist+rawChunk)
+			}
 			for j := range work {
-				if raw != nil {
-					clear(j.win[:j.from])
-					decode(j.win[j.from:j.to], j.raw[j.from*ss:j.to*ss])
-					clear(j.win[j.to : hist+j.n])
+				for i := range j.outs {
+					j.outs[i] = j.outs[i][:0]
 				}
-				for _, u := range units {
-					first := r.chans[u.idx[0]].first
-					win := j.win[hist-(first.l-1) : hist+j.n]
-					if u.g == nil {
-						j.outs[u.idx[0]] = first.Block(j.outs[u.idx[0]][:0], win, j.a)
-						continue
+				if raw == nil {
+					r.firstStages(units, j.outs, &gouts, j.win[:hist+j.n], hist, j.a)
+					close(j.done)
+					continue
+				}
+				for s := 0; s < j.n; s += rawChunk {
+					e := min(s+rawChunk, j.n)
+					// job window indices s … hist+e into w[0 : hist+e−s]
+					ww := w[:hist+e-s]
+					lo, hi := max(s, j.from), min(hist+e, j.to)
+					if lo >= hi {
+						clear(ww)
+					} else {
+						clear(ww[:lo-s])
+						decode(ww[lo-s:hi-s], j.raw[lo*ss:hi*ss])
+						clear(ww[hi-s:])
 					}
-					for k, i := range u.idx {
-						gouts[k] = j.outs[i][:0]
-					}
-					u.g.block(gouts[:len(u.idx)], win, j.a)
-					for k, i := range u.idx {
-						j.outs[i] = gouts[k]
-					}
+					r.firstStages(units, j.outs, &gouts, ww, hist, j.a+int64(s))
 				}
 				close(j.done)
 			}
@@ -363,4 +373,29 @@ func (r *Receiver) firstUnits() []firstUnit {
 		}
 	}
 	return units
+}
+
+// rawChunk is the number of encoded capture samples a Receiver worker
+// decodes at a time (32 KiB of complex64 plus the history): small enough
+// to stay in the core's cache for the first stages that read them.
+const rawChunk = 4096
+
+// firstStages appends to outs the first-stage outputs of every channel
+// for the window w, whose first hist samples precede absolute index a.
+func (r *Receiver) firstStages(units []firstUnit, outs [][]complex64, gouts *[4][]complex64, w []complex64, hist int, a int64) {
+	for _, u := range units {
+		first := r.chans[u.idx[0]].first
+		win := w[hist-(first.l-1):]
+		if u.g == nil {
+			outs[u.idx[0]] = first.Block(outs[u.idx[0]], win, a)
+			continue
+		}
+		for k, i := range u.idx {
+			gouts[k] = outs[i]
+		}
+		u.g.block(gouts[:len(u.idx)], win, a)
+		for k, i := range u.idx {
+			outs[i] = gouts[k]
+		}
+	}
 }
