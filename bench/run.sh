@@ -60,9 +60,12 @@ section_rx() {
 		timed "ssbkit rx, 4 channels (run $i)" "$m" "$ssbkit" rx "$cap" --rate 2.4M --offset -300k --offset 120k --offset 500k --offset 700k --agc off -q -o "$work/m_{freq}.wav"
 		timed "ssbkit rx, 1 channel (run $i)" "$o" "$ssbkit" rx "$cap" --rate 2.4M --offset 500k --agc off -q -o "$work/c.wav"
 	done
-	awk -v a="$(best "$m")" -v b="$(best "$o")" -v ca="$(bestcpu "$m")" -v cb="$(bestcpu "$o")" 'BEGIN {
-		printf "  best: four channels %.2f s, one channel %.2f s: four in one pass cost %.2f single passes (goal < 2)\n", a, b, a/b
-		printf "  CPU time (less sensitive to other load): four channels %.2f s, one channel %.2f s: %.2f single passes\n", ca, cb, ca/cb }'
+	awk -v a="$(best "$m")" -v b="$(best "$o")" -v ca="$(bestcpu "$m")" -v cb="$(bestcpu "$o")" \
+		-v ma="$(median "$m")" -v mb="$(median "$o")" -v mca="$(mediancpu "$m")" -v mcb="$(mediancpu "$o")" 'BEGIN {
+		printf "  best wall:   four channels %.3f s, one channel %.3f s: four in one pass cost %.2f single passes (goal < 2)\n", a, b, a/b
+		printf "  median wall: four channels %.3f s, one channel %.3f s: %.2f single passes\n", ma, mb, ma/mb
+		printf "  best CPU:    four channels %.3f s, one channel %.3f s: %.2f single passes\n", ca, cb, ca/cb
+		printf "  median CPU:  four channels %.3f s, one channel %.3f s: %.2f single passes\n", mca, mcb, mca/mcb }'
 	$PY "$refdir/check_decode.py" "$work/m_-300000.wav@-300000" "$work/m_+120000.wav@120000" "$work/m_+500000.wav@500000" | sed 's/^/    /'
 }
 
