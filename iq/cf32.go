@@ -16,6 +16,12 @@ func cf32View(src []complex64) []byte {
 	return unsafe.Slice((*byte)(unsafe.Pointer(unsafe.SliceData(src))), 8*len(src))
 }
 
+// floatView returns the components of src, I and Q alternating, without
+// a copy.
+func floatView(src []complex64) []float32 {
+	return unsafe.Slice((*float32)(unsafe.Pointer(unsafe.SliceData(src))), 2*len(src))
+}
+
 // IEEE 754 binary32: a value is NaN or ±Inf exactly when its eight
 // exponent bits are all ones (IEEE Std 754-2019, clause 3.4). The masks
 // below handle the two float32 halves of a 64-bit word at once.

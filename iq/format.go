@@ -260,15 +260,7 @@ func encodeComplex(d Datatype, dst []byte, src []complex64) (nonfinite int) {
 			nonfinite += c1 + c2
 		}
 	case CI16:
-		dst = dst[: 4*n : 4*n]
-		for i, v := range src {
-			a, c1 := quantize(real(v), 32768, 0, -32768, 32767)
-			b, c2 := quantize(imag(v), 32768, 0, -32768, 32767)
-			s := dst[4*i : 4*i+4 : 4*i+4]
-			binary.LittleEndian.PutUint16(s[0:2], uint16(int16(a)))
-			binary.LittleEndian.PutUint16(s[2:4], uint16(int16(b)))
-			nonfinite += c1 + c2
-		}
+		_, nonfinite = QuantizeS16(dst[:4*n], floatView(src), 32768)
 	case CF32:
 		return encodeCF32(dst, src)
 	default:

@@ -424,9 +424,10 @@ func (m *wavMono) header(n int64) []byte {
 	return h
 }
 
-// Write quantises a (full scale ±1) to 16 bits, clamping and counting
-// samples beyond full scale, and writes them once wavFlush bytes are
-// pending (Close writes the rest). An error is sticky.
+// Write quantises a (full scale ±1 to ±32767, iq.QuantizeS16) to 16
+// bits, clamping and counting samples beyond full scale (NaN among them),
+// and writes them once wavFlush bytes are pending (Close writes the
+// rest). An error is sticky.
 func (m *wavMono) Write(a []float32) error {
 	if m.err != nil {
 		return m.err
@@ -437,27 +438,8 @@ func (m *wavMono) Write(a []float32) error {
 		copy(nb, m.buf)
 		m.buf = nb
 	}
-	b := m.buf[k : k+2*len(a)]
-	for i, v := range a {
-		// round(x) half away from zero, as math.Round but without its
-		// call: x, a float32 times 32767, is exact in float64, and so is
-		// x ± 0.5 wherever it matters, so truncating it rounds correctly
-		// (TestWAVMonoRounding compares with math.Round).
-		x := float64(v) * 32767
-		x += math.Copysign(0.5, x)
-		if !(x < 32768 && x > -32769) { // beyond full scale, or NaN
-			m.clipped++
-			switch {
-			case x != x:
-				x = 0
-			case x > 0:
-				x = 32767
-			default:
-				x = -32768
-			}
-		}
-		binary.LittleEndian.PutUint16(b[2*i:], uint16(int16(int32(x))))
-	}
+	c, nf := iq.QuantizeS16(m.buf[k:k+2*len(a)], a, 32767)
+	m.clipped += int64(c + nf)
 	m.buf = m.buf[:k+2*len(a)]
 	m.n += int64(len(a))
 	if len(m.buf) >= wavFlush {

@@ -232,7 +232,8 @@ func BenchmarkRawDecodeCU8(b *testing.B) {
 }
 
 // TestWAVMonoRounding: wavMono quantises as clamp(round(x·32767)) with
-// math.Round (half away from zero) and counts the samples it clamps; the
+// math.Round (half away from zero), NaN and ±Inf as 0, and counts the
+// samples it clamps and the non-finite ones; the
 // expected codes are computed here with math.Round itself, on the ties
 // ±(k + 0.5)/32767, their float32 neighbours, full scale, NaN and seeded
 // random values.
@@ -256,8 +257,8 @@ func TestWAVMonoRounding(t *testing.T) {
 		x := math.Round(float64(v) * 32767)
 		if x > 32767 || x < -32768 || x != x {
 			clipped++
-			if x != x {
-				x = 0
+			if math.IsNaN(x) || math.IsInf(x, 0) {
+				x = 0 // as the iq writers: never a rail for a non-number
 			}
 			x = math.Max(-32768, math.Min(32767, x))
 		}
