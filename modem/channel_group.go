@@ -54,21 +54,12 @@ func newShiftGroup(sds []*ShiftDecimator) *shiftGroup {
 // decimator of the group.
 func (g *shiftGroup) block(outs [][]complex64, win []complex64, a int64) {
 	s0 := g.sds[0]
-	l, d := s0.l, int64(s0.d)
-	nb := int64(len(win) - (l - 1))
-	r := (a - int64(s0.phase)) % d
-	if r < 0 {
-		r += d
-	}
-	n := a
-	if r != 0 {
-		n += d - r
-	}
-	if n >= a+nb {
+	l := s0.l
+	n, cnt := s0.span(a, int64(len(win)-(l-1)))
+	if cnt == 0 {
 		return
 	}
 	j0 := int(n - a)
-	cnt := (int(nb)-1-j0)/s0.d + 1
 	if (cnt-1)*s0.d+l > len(win)-j0 {
 		panic("modem: kernel window too short")
 	}
@@ -77,12 +68,7 @@ func (g *shiftGroup) block(outs [][]complex64, win []complex64, a int64) {
 	for c := range 4 {
 		if c < len(g.sds) {
 			k := len(outs[c])
-			if cap(outs[c])-k < cnt {
-				nd := make([]complex64, k, 2*(k+cnt))
-				copy(nd, outs[c])
-				outs[c] = nd
-			}
-			outs[c] = outs[c][:k+cnt]
+			outs[c] = grow(outs[c], cnt)[:k+cnt]
 			out[c] = &outs[c][k]
 		} else {
 			out[c] = out[0]

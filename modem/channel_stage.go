@@ -136,18 +136,8 @@ func (s *ShiftDecimator) Process(dst, src []complex64) []complex64 {
 // block are appended to dst. Blocks of one stream may be run in any order
 // and on any goroutine; their outputs, concatenated, equal Process's.
 func (s *ShiftDecimator) Block(dst, win []complex64, a int64) []complex64 {
-	l := s.l
-	nb := int64(len(win) - (l - 1))
-	// first output index n ≥ a with n ≡ phase (mod d)
-	d := int64(s.d)
-	r := (a - int64(s.phase)) % d
-	if r < 0 {
-		r += d
-	}
-	n := a
-	if r != 0 {
-		n += d - r
-	}
+	nb := int64(len(win) - (s.l - 1))
+	n, _ := s.span(a, nb)
 	if n >= a+nb {
 		return dst
 	}
@@ -160,16 +150,42 @@ func (s *ShiftDecimator) Block(dst, win []complex64, a int64) []complex64 {
 	return s.blockDot(dst, win, a, n, nb)
 }
 
-// blockSymKernel is blockSym by the assembly kernel.
-func (s *ShiftDecimator) blockSymKernel(dst, win []complex64, a, n, nb int64) []complex64 {
-	j0 := int(n - a)
-	cnt := (int(nb)-1-j0)/s.d + 1
+// span returns the absolute index n of the first output of a block of
+// nb inputs from index a (the first n ≥ a with n ≡ phase mod d) and the
+// number of outputs in the block (0 when n ≥ a + nb).
+func (s *ShiftDecimator) span(a, nb int64) (n int64, cnt int) {
+	d := int64(s.d)
+	r := (a - int64(s.phase)) % d
+	if r < 0 {
+		r += d
+	}
+	n = a
+	if r != 0 {
+		n += d - r
+	}
+	if n >= a+nb {
+		return n, 0
+	}
+	return n, int((a+nb-1-n)/d) + 1
+}
+
+// grow returns dst with room for cnt more samples after its length.
+func grow(dst []complex64, cnt int) []complex64 {
 	k := len(dst)
 	if cap(dst)-k < cnt {
 		nd := make([]complex64, k, 2*(k+cnt))
 		copy(nd, dst)
 		dst = nd
 	}
+	return dst
+}
+
+// blockSymKernel is blockSym by the assembly kernel.
+func (s *ShiftDecimator) blockSymKernel(dst, win []complex64, a, n, nb int64) []complex64 {
+	j0 := int(n - a)
+	cnt := (int(nb)-1-j0)/s.d + 1
+	k := len(dst)
+	dst = grow(dst, cnt)
 	p := phasor(uint64(n)*s.step) * s.post
 	s.st.dotRotate(dst[k:k+cnt], win[j0:], s.d, p, s.rot)
 	return dst[:k+cnt]
@@ -182,11 +198,7 @@ func (s *ShiftDecimator) blockDot(dst, win []complex64, a, n, nb int64) []comple
 	j0 := int(n - a)
 	cnt := (int(nb)-1-j0)/s.d + 1
 	k := len(dst)
-	if cap(dst)-k < cnt {
-		nd := make([]complex64, k, 2*(k+cnt))
-		copy(nd, dst)
-		dst = nd
-	}
+	dst = grow(dst, cnt)
 	out := dst[k : k+cnt]
 	p := phasor(uint64(n) * s.step)
 	if s.kt != nil {
