@@ -144,12 +144,19 @@ func runRx(e *env, args []string) error {
 		if in == "-" {
 			return usagef("--auto needs a file: it reads the capture twice")
 		}
-		found, err := detectChannels(e, in, cf, *quiet)
+		found, undecided, err := detectChannels(e, in, cf, *quiet)
 		if err != nil {
 			return err
 		}
+		if len(found) == 0 && len(undecided) > 0 {
+			u := undecided[0]
+			return fmt.Errorf("%s: signal detection found nothing to decode: the signal at %+.0f…%+.0f Hz has no carrier or speech-like spectrum to tell its sideband (test tones?); give --offset HZ:usb or HZ:lsb", in, u.LowHz, u.HighHz)
+		}
 		if len(found) == 0 {
 			return fmt.Errorf("%s: signal detection found nothing to decode", in)
+		}
+		for _, u := range undecided {
+			fmt.Fprintf(e.stderr, "ssbkit: rx: warning: skipping the signal at %+.0f…%+.0f Hz: its sideband cannot be told (test tones?)\n", u.LowHz, u.HighHz)
 		}
 		chans = found
 		src.Close()
@@ -320,11 +327,13 @@ func parseChannelSpec(s string, def modem.Mode) (float64, modem.Mode, error) {
 const autoSegments = 256
 
 // detectChannels runs signal detection over the capture and returns a
-// channel for every usb, lsb and am signal found.
-func detectChannels(e *env, in string, cf *captureFlags, quiet bool) ([]rxChannel, error) {
+// channel for every usb, lsb and am signal found, and the signals of
+// unknown kind (whose sideband the spectrum cannot tell, test tones for
+// one), which rx skips with a warning.
+func detectChannels(e *env, in string, cf *captureFlags, quiet bool) (found []rxChannel, undecided []spectral.Signal, err error) {
 	src, err := reopenCapture(e, in, cf)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	defer src.Close()
 	meta := src.Meta()
@@ -355,11 +364,10 @@ func detectChannels(e *env, in string, cf *captureFlags, quiet bool) ([]rxChanne
 		}
 		if err != nil {
 			bar.Done()
-			return nil, err
+			return nil, nil, err
 		}
 	}
 	bar.Done()
-	var out []rxChannel
 	for _, s := range spectral.Detect(acc.PSD(), meta.Rate, spectral.DetectOptions{}) {
 		var m modem.Mode
 		switch s.Kind {
@@ -369,15 +377,18 @@ func detectChannels(e *env, in string, cf *captureFlags, quiet bool) ([]rxChanne
 			m = modem.LSB
 		case spectral.KindAM:
 			m = modem.AM
+		case spectral.KindUnknown:
+			undecided = append(undecided, s)
+			continue
 		default:
 			continue
 		}
-		out = append(out, rxChannel{offset: math.Round(s.OffsetHz), cfg: modem.RxConfig{Mode: m}})
+		found = append(found, rxChannel{offset: math.Round(s.OffsetHz), cfg: modem.RxConfig{Mode: m}})
 		if !quiet {
 			fmt.Fprintf(e.stderr, "rx: found %s at %+.0f Hz (SNR %.1f dB)\n", s.Kind, s.OffsetHz, s.SNRdB)
 		}
 	}
-	return out, nil
+	return found, undecided, nil
 }
 
 // wavMono writes mono 16-bit PCM WAV. Written here rather than with

@@ -461,6 +461,26 @@ func TestRxAuto(t *testing.T) {
 	}
 }
 
+// TestRxAutoTwoTone: a noiseless two-tone USB test transmission has no
+// carrier and no speech-like spectrum, so detection cannot tell its
+// sideband; rx --auto says so in one line, naming the band and the way
+// out (--offset HZ:usb), exits 1 and writes no file.
+func TestRxAutoTwoTone(t *testing.T) {
+	dir := t.TempDir()
+	in := filepath.Join(dir, "tt.cf32")
+	if code, _, errs := runCmd(t, "tx", "--two-tone", "700,1900", "--seconds", "1", "--rate", "240k", "--offset", "30k", "-q", "-o", in); code != 0 {
+		t.Fatalf("tx: exit %d: %s", code, errs)
+	}
+	code, _, errs := runCmd(t, "rx", in, "--rate", "240k", "--auto", "-o", filepath.Join(dir, "a_{freq}.wav"))
+	if code != 1 || strings.Count(strings.TrimSpace(errs), "\n") != 0 ||
+		!strings.Contains(errs, "sideband") || !strings.Contains(errs, "HZ:usb") {
+		t.Errorf("exit %d, stderr %q: want exit 1 and one line about the undecidable sideband", code, errs)
+	}
+	if files, _ := filepath.Glob(filepath.Join(dir, "a_*")); len(files) != 0 {
+		t.Errorf("wrote %q", files)
+	}
+}
+
 // TestRxLowRateRecording: a receiver's audio recorded at 44.1 kHz decodes
 // with the default --audio-rate, which then falls to the capture's rate
 // (a choice recorded in rx --help); an explicit 48k above it is a usage

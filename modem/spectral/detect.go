@@ -1,6 +1,7 @@
 package spectral
 
 import (
+	"cmp"
 	"math"
 	"slices"
 )
@@ -278,6 +279,10 @@ func Detect(psd []float64, rate float64, opt DetectOptions) []Signal {
 			s.Kind, s.OffsetHz = KindAM, peakHz
 		case core >= carrierShare*(core+left+right):
 			s.Kind, s.OffsetHz = KindCarrier, peakHz
+		case tonal(psd, a, b, floor, zone):
+			// a few lines (a two-tone test, say): without a carrier
+			// or a speech-like spectrum the sideband is undecidable
+			s.Kind, s.OffsetHz = KindUnknown, mid
 		default:
 			c := moment / sig
 			rel := (c - mid) / (width / 2)
@@ -331,6 +336,45 @@ const (
 	sidebandMin  = 1e-3
 	carrierShare = 0.9
 )
+
+// A group is tonal when its tonalLines strongest local peaks, with zone
+// bins either side of each, hold tonalShare of its power above the floor
+// while covering at most half of its bins: discrete lines, not the
+// continuous spectrum of speech, whose power centroid shows the sideband
+// (common practice; two or three test tones are tonal, voice with its
+// harmonics spread over the band is not).
+const (
+	tonalLines = 4
+	tonalShare = 0.9
+)
+
+// tonal reports whether the group [a, b] of psd is tonal (see tonalLines).
+func tonal(psd []float64, a, b int, floor float64, zone int) bool {
+	var peaks []int
+	for j := a; j <= b; j++ {
+		if (j == a || psd[j] >= psd[j-1]) && (j == b || psd[j] > psd[j+1]) {
+			peaks = append(peaks, j)
+		}
+	}
+	slices.SortFunc(peaks, func(x, y int) int { return cmp.Compare(psd[y], psd[x]) })
+	covered := make([]bool, b-a+1)
+	for _, p := range peaks[:min(tonalLines, len(peaks))] {
+		for j := max(a, p-zone); j <= min(b, p+zone); j++ {
+			covered[j-a] = true
+		}
+	}
+	var in, all float64
+	n := 0
+	for j := a; j <= b; j++ {
+		e := math.Max(psd[j]-floor, 0)
+		all += e
+		if covered[j-a] {
+			in += e
+			n++
+		}
+	}
+	return 2*n <= len(covered) && in >= tonalShare*all
+}
 
 // centroidSkew is the fraction of the half width by which the power
 // centroid must sit off the middle to call a sideband.

@@ -210,3 +210,34 @@ func TestHannSkirtBound(t *testing.T) {
 		}
 	}
 }
+
+// TestDetectTwoToneUndecided: a noiseless two-tone USB transmission (700
+// and 1900 Hz above a carrier at 50 kHz, the opposite sideband 80 dB
+// down, as tx makes it) has no carrier and no speech-like spectrum, so
+// its sideband cannot be told from the spectrum: the same lines are an
+// LSB two-tone below a carrier at 52.6 kHz. At 36.6 Hz resolution the
+// residue at 49.3 kHz joins the group and used to skew its power
+// centroid into an "lsb" call. Each group holding the tones must be
+// unknown, never usb or lsb.
+func TestDetectTwoToneUndecided(t *testing.T) {
+	const rate, nfft = 2.4e6, 65536
+	a := NewAccumulator(nfft, rate)
+	a.Add(lines(1<<19, rate, line{f: 50700, amp: 0.5}, line{f: 51900, amp: 0.5, phase: 1},
+		line{f: 49300, amp: 5e-5}, line{f: 48100, amp: 5e-5}))
+	s := Detect(a.PSD(), rate, DetectOptions{})
+	found := false
+	for _, g := range s {
+		if g.LowHz <= 50700 && g.HighHz >= 51900 {
+			found = true
+			if g.Kind != KindUnknown {
+				t.Errorf("two-tone group %+v called %s, want unknown", g, g.Kind)
+			}
+		}
+		if g.Kind == KindUSB || g.Kind == KindLSB {
+			t.Errorf("signal %+v called %s", g, g.Kind)
+		}
+	}
+	if !found {
+		t.Errorf("no group spans both tones: %+v", s)
+	}
+}
