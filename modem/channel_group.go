@@ -40,11 +40,9 @@ func newShiftGroup(sds []*ShiftDecimator) *shiftGroup {
 			copy(g.taps[64*k+16*c:], s.st.pa[8*k:8*k+8])
 			copy(g.taps[64*k+16*c+8:], s.st.pb[8*k:8*k+8])
 		}
-		r := s.rot
-		o := 32 * (c % 2) // (r₀, r₂) then (r₁, r₃)
-		i := 2 * (c / 2)
-		g.rd[o/4+i], g.rd[o/4+i+1] = real(r), real(r)
-		g.rd[o/4+4+i], g.rd[o/4+4+i+1] = imag(r), imag(r)
+		b := 8*(c%2) + 2*(c/2) // (r₀, r₂) then (r₁, r₃)
+		g.rd[b], g.rd[b+1] = real(s.rot), real(s.rot)
+		g.rd[b+4], g.rd[b+5] = imag(s.rot), imag(s.rot)
 	}
 	return g
 }
@@ -78,9 +76,8 @@ func (g *shiftGroup) block(outs [][]complex64, win []complex64, a int64) {
 			s = g.sds[c]
 		}
 		p := phasor(uint64(n)*s.step) * s.post
-		o := 4 * (c % 2) // (q₀, q₂) then (q₁, q₃)
-		i := 2 * (c / 2)
-		q[o+i], q[o+i+1] = real(p), imag(p)
+		b := 4*(c%2) + 2*(c/2) // (q₀, q₂) then (q₁, q₃)
+		q[b], q[b+1] = real(p), imag(p)
 	}
 	dotSym4AVX2(&out, cnt, &win[j0], s0.d, &g.taps[0], g.groups, 8*(l-4), &q, &g.rd)
 }
