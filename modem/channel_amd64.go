@@ -39,3 +39,10 @@ func dotSymAVX2(dst *complex64, n int, x *complex64, step int, pa, pb *float32, 
 //
 //go:noescape
 func dotSym4AVX2(out *[4]*complex64, n int, x *complex64, step int, taps *float32, groups, hi int, q *[8]float64, rd *[16]float64)
+
+// dotRealSymAVX2 is dotRealGo for symmetric taps on the layout of
+// realSymTaps, two outputs a pass: n outputs from windows of L taps at x,
+// x+step, …; hi is 8·(L−4).
+//
+//go:noescape
+func dotRealSymAVX2(dst *complex64, n int, x *complex64, step int, hd *float32, groups, hi int)

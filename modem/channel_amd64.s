@@ -547,3 +547,81 @@ finner:
 fdone:
 	VZEROUPPER
 	RET
+
+// func dotRealSymAVX2(dst *complex64, n int, x *complex64, step int, hd *float32, groups, hi int)
+//
+// dotRealAVX2 for symmetric taps h[k] = h[L−1−k], two outputs a pass:
+// dst[m] = Σₖ h[k]·(lo + hi), lo = x[m·step + k], hi = x[m·step + L−1−k],
+// over the pair slots k of realSymTaps (the centre of an odd length as
+// a slot with h/2). The hi samples of a group of four slots are loaded
+// from x + hi − 32·g and reversed by VPERMPD, as in dotSymAVX2; half the
+// multiply-adds of dotRealAVX2. An odd last output runs as a pass whose
+// second window repeats the first and is not stored.
+TEXT ·dotRealSymAVX2(SB), NOSPLIT, $0-56
+	MOVQ dst+0(FP), DI
+	MOVQ n+8(FP), CX
+	MOVQ x+16(FP), SI
+	MOVQ step+24(FP), DX
+	SHLQ $3, DX
+	MOVQ hd+32(FP), R8
+	MOVQ groups+40(FP), BX
+	SHLQ $5, BX
+	MOVQ hi+48(FP), R12
+	TESTQ CX, CX
+	JZ   ydone
+
+youter:
+	CMPQ CX, $1
+	JNE  ypair
+	XORQ DX, DX
+
+ypair:
+	VXORPS Y0, Y0, Y0
+	VXORPS Y1, Y1, Y1
+	XORQ   AX, AX
+	MOVQ   SI, R14
+	LEAQ   (SI)(R12*1), R10
+	LEAQ   (SI)(DX*1), R11
+	LEAQ   (R10)(DX*1), R13
+
+yinner:
+	VMOVUPS     (R14), Y4
+	VPERMPD     $0x1B, (R10), Y5
+	VADDPS      Y5, Y4, Y4
+	VFMADD231PS (R8)(AX*1), Y4, Y0
+	VMOVUPS     (R11), Y6
+	VPERMPD     $0x1B, (R13), Y7
+	VADDPS      Y7, Y6, Y6
+	VFMADD231PS (R8)(AX*1), Y6, Y1
+	ADDQ        $32, R14
+	ADDQ        $32, R11
+	SUBQ        $32, R10
+	SUBQ        $32, R13
+	ADDQ        $32, AX
+	CMPQ        AX, BX
+	JLT         yinner
+
+	// the sums of four complex lanes, (l₀ + l₂) + (l₁ + l₃), of both
+	// outputs into X4
+	VPERM2F128   $0x20, Y1, Y0, Y4
+	VPERM2F128   $0x31, Y1, Y0, Y5
+	VADDPS       Y5, Y4, Y4
+	VPERMILPD    $5, Y4, Y5
+	VADDPS       Y5, Y4, Y4
+	VEXTRACTF128 $1, Y4, X5
+	VUNPCKLPD    X5, X4, X4
+	CMPQ         CX, $1
+	JEQ          yone
+	VMOVUPS      X4, (DI)
+	LEAQ         (SI)(DX*2), SI
+	ADDQ         $16, DI
+	SUBQ         $2, CX
+	JNZ          youter
+	JMP          ydone
+
+yone:
+	VMOVSD X4, (DI)
+
+ydone:
+	VZEROUPPER
+	RET

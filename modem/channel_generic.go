@@ -25,3 +25,7 @@ func dotSymAVX2(dst *complex64, n int, x *complex64, step int, pa, pb *float32, 
 func dotSym4AVX2(out *[4]*complex64, n int, x *complex64, step int, taps *float32, groups, hi int, q *[8]float64, rd *[16]float64) {
 	panic("modem: no assembly kernels in this build")
 }
+
+func dotRealSymAVX2(dst *complex64, n int, x *complex64, step int, hd *float32, groups, hi int) {
+	panic("modem: no assembly kernels in this build")
+}

@@ -237,3 +237,46 @@ func (t *symTaps) dotRotate(dst, x []complex64, step int, p, r complex128) {
 	q := [4]float64{real(p), imag(p), real(p1), imag(p1)}
 	dotSymAVX2(&dst[0], len(dst), &x[0], step, &t.pa[0], &t.pb[0], t.groups, 8*(t.l-4), &q, r*r)
 }
+
+// realSymTaps holds symmetric real taps in the layout of dotRealSymAVX2:
+// slot k < L/2 holds h[k] (twice), the centre tap of an odd length one
+// more slot with h[c]/2, zero-padded to whole groups of four slots.
+type realSymTaps struct {
+	l, groups int
+	hd        []float32
+}
+
+// newRealSymTaps returns the layout of the taps h (in window order), or
+// nil when they are not symmetric or the groups of four slots would reach
+// past the window (l < 4 or l = 6).
+func newRealSymTaps(h []float32) *realSymTaps {
+	l := len(h)
+	for k := range l / 2 {
+		if h[k] != h[l-1-k] {
+			return nil
+		}
+	}
+	g := ((l+1)/2 + 3) / 4
+	if 4*g > l {
+		return nil
+	}
+	t := &realSymTaps{l: l, groups: g, hd: make([]float32, 8*g)}
+	for k := range l / 2 {
+		t.hd[2*k], t.hd[2*k+1] = h[k], h[k]
+	}
+	if l%2 == 1 {
+		k := l / 2
+		t.hd[2*k], t.hd[2*k+1] = h[k]/2, h[k]/2
+	}
+	return t
+}
+
+// dot computes dst[m] = Σₖ h[k]·x[m·step + k] by dotRealSymAVX2. It
+// panics if x is too short.
+func (t *realSymTaps) dot(dst, x []complex64, step int) {
+	checkWindow(dst, x, step, t.l)
+	if len(dst) == 0 {
+		return
+	}
+	dotRealSymAVX2(&dst[0], len(dst), &x[0], step, &t.hd[0], t.groups, 8*(t.l-4))
+}

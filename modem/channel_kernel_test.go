@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"slices"
 	"testing"
 )
 
@@ -167,9 +168,13 @@ func BenchmarkKernels(b *testing.B) {
 		})
 	}
 	const n = 1 << 16
-	for _, p := range []struct{ l, d int }{{31, 16}, {53, 5}} {
+	for _, p := range []struct{ l, d int }{{31, 16}, {31, 5}, {53, 5}, {71, 1}} {
 		cr := testReal(p.l, 1)
 		ci := testReal(p.l, 2)
+		hs := slices.Clone(cr) // symmetric, as the Kaiser stages' taps
+		for k := range p.l / 2 {
+			hs[p.l-1-k] = hs[k]
+		}
 		x := testSignal(n+p.l, 3)
 		dst := make([]complex64, n/p.d)
 		kt := newKernelTaps(cr, ci)
@@ -178,8 +183,10 @@ func BenchmarkKernels(b *testing.B) {
 		run("complexGo"+sfx, 2*n, func() { dotComplexGo(dst, x, p.d, cr, ci); rotate(dst, 1, 1) })
 		run("realGo"+sfx, 2*n, func() { dotRealGo(dst, x, p.d, cr) })
 		if haveKernels {
+			st := newRealSymTaps(hs)
 			run("complexAVX2"+sfx, 2*n, func() { kt.dotRotate(dst, x, p.d, 1, 1) })
 			run("realAVX2"+sfx, 2*n, func() { ktr.dotReal(dst, x, p.d) })
+			run("realSymAVX2"+sfx, 2*n, func() { st.dot(dst, x, p.d) })
 		}
 	}
 	ph := make([][]float32, 8)
@@ -364,5 +371,56 @@ func TestShiftGroupMatchesBlock(t *testing.T) {
 				}
 			}
 		}
+	}
+}
+
+// TestRealSymKernelMatchesGo compares dotRealSymAVX2 with dotRealGo for
+// symmetric taps of odd and even length, several steps and output counts
+// of both parities. The samples after the last window are NaN, so a read
+// past the windows would show.
+func TestRealSymKernelMatchesGo(t *testing.T) {
+	if !haveKernels {
+		t.Skip("no assembly kernels in this build (purego, another architecture or no AVX2/FMA)")
+	}
+	r := rand.New(rand.NewPCG(13, 14))
+	for _, l := range []int{4, 5, 8, 9, 13, 16, 31, 53, 71, 72} {
+		h := make([]float32, l)
+		for k := range (l + 1) / 2 {
+			v := float32(r.NormFloat64())
+			h[k], h[l-1-k] = v, v
+		}
+		st := newRealSymTaps(h)
+		if st == nil {
+			t.Fatalf("L=%d: no symmetric layout", l)
+		}
+		for _, step := range []int{1, 5, 16} {
+			for _, cnt := range []int{1, 2, 7, 64} {
+				need := (cnt-1)*step + l
+				x := testSignal(need+8, uint64(l*1000+step*10+cnt))
+				for i := need; i < len(x); i++ {
+					x[i] = complex(float32(math.NaN()), float32(math.NaN()))
+				}
+				x = x[:need]
+				got := make([]complex64, cnt)
+				want := make([]complex64, cnt)
+				st.dot(got, x, step)
+				dotRealGo(want, x, step, h)
+				for m := range cnt {
+					var mag float64
+					for k := range l {
+						v := x[m*step+k]
+						mag += math.Abs(float64(h[k])) * (math.Abs(float64(real(v))) + math.Abs(float64(imag(v))))
+					}
+					// kernelBound: Higham, 2nd ed., eq. 3.5 (from memory);
+					// one more addition for each pair
+					if d := cabs(got[m] - want[m]); !(d <= kernelBound(l+1, mag)) {
+						t.Errorf("L=%d step %d n=%d output %d: kernel %v, Go %v (difference %.3g)", l, step, cnt, m, got[m], want[m], d)
+					}
+				}
+			}
+		}
+	}
+	if newRealSymTaps([]float32{1, 2, 3, 4, 5}) != nil {
+		t.Error("asymmetric taps got the symmetric layout")
 	}
 }

@@ -277,8 +277,9 @@ func (s *ShiftDecimator) blockSym(dst, win []complex64, a, n, nb int64) []comple
 // of channel_kernel.go where there is one. With d = 1 it is a plain FIR
 // filter (the receive chain's channel filter).
 type Decimator struct {
-	kt    *kernelTaps // rev for the assembly kernel (nil without it)
-	rev   []float32   // taps reversed
+	kt    *kernelTaps  // rev for the assembly kernel (nil without it)
+	st    *realSymTaps // rev for the symmetric kernel (nil without it or for asymmetric taps)
+	rev   []float32    // taps reversed
 	l, d  int
 	phase int
 	next  int // index in the coming input of the next output (window end)
@@ -295,6 +296,7 @@ func NewDecimator(taps []float64, d, phase int) *Decimator {
 	f := &Decimator{rev: reverse32(taps), l: len(taps), d: d, phase: phase, next: phase}
 	if haveKernels {
 		f.kt = newKernelTaps(f.rev, nil)
+		f.st = newRealSymTaps(f.rev)
 	}
 	f.buf = make([]complex64, f.l-1, 2*(f.l-1))
 	return f
@@ -351,7 +353,9 @@ func (f *Decimator) Process(dst, src []complex64) []complex64 {
 func (f *Decimator) dot(dst, x []complex64, cnt int) []complex64 {
 	k := len(dst)
 	out := dst[k : k+cnt]
-	if f.kt != nil {
+	if f.st != nil {
+		f.st.dot(out, x, f.d)
+	} else if f.kt != nil {
 		f.kt.dotReal(out, x, f.d)
 	} else {
 		dotRealGo(out, x, f.d, f.rev)
