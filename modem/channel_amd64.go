@@ -46,3 +46,10 @@ func dotSym4AVX2(out *[4]*complex64, n int, x *complex64, step int, taps *float3
 //
 //go:noescape
 func dotRealSymAVX2(dst *complex64, n int, x *complex64, step int, hd *float32, groups, hi int)
+
+// dotSym2x2AVX2 is dotSym4AVX2 for two channels, two outputs a pass, on
+// the two-channel layout of shiftGroup: n outputs of each channel c to
+// out[c], output m rotated by q_c·r_cᵐ.
+//
+//go:noescape
+func dotSym2x2AVX2(out *[2]*complex64, n int, x *complex64, step int, taps *float32, groups, hi int, q *[8]float64, rd *[16]float64)

@@ -625,3 +625,138 @@ yone:
 ydone:
 	VZEROUPPER
 	RET
+
+// func dotSym2x2AVX2(out *[2]*complex64, n int, x *complex64, step int, taps *float32, groups, hi int, q *[8]float64, rd *[16]float64)
+//
+// dotSym4AVX2 for two channels of one window geometry, two outputs a
+// pass: lanes 0 and 1 are channels 0 and 1 at output m (the sums and
+// differences of window m), lanes 2 and 3 the same channels at output
+// m+1 (window m+1). taps holds, per group of four slots, pa then −pb of
+// channel 0, then of channel 1 (128 bytes a group). After the reduction
+// (as dotSym4AVX2's) X11 holds channel 0's outputs m, m+1 and the upper
+// half channel 1's, stored 16 bytes each. Phasors: Y12 = (q₀(m), q₀(m+1)),
+// Y13 = (q₁(m), q₁(m+1)), advanced by r₀², r₁² (rd as in dotSym4AVX2 with
+// r₀² twice, then r₁² twice). An odd last output runs as a pass whose
+// second window repeats the first, storing 8 bytes a channel.
+TEXT ·dotSym2x2AVX2(SB), NOSPLIT, $0-72
+	MOVQ out+0(FP), AX
+	MOVQ 0(AX), R11
+	MOVQ 8(AX), R12
+	MOVQ n+8(FP), CX
+	MOVQ x+16(FP), SI
+	MOVQ step+24(FP), DX
+	SHLQ $3, DX                // bytes between outputs
+	MOVQ taps+32(FP), R8
+	MOVQ groups+40(FP), BX
+	SHLQ $7, BX                // bytes of taps
+	MOVQ q+56(FP), AX
+	TESTQ CX, CX
+	JZ   tdone
+	VMOVUPD (AX), Y12
+	VMOVUPD 32(AX), Y13
+	XORQ    R9, R9             // output index
+
+touter:
+	CMPQ CX, $1
+	JNE  tpair
+	XORQ DX, DX                // the odd last output: window m+1 repeats window m
+
+tpair:
+	VXORPS Y0, Y0, Y0
+	VXORPS Y1, Y1, Y1
+	VXORPS Y2, Y2, Y2
+	VXORPS Y3, Y3, Y3
+	VXORPS Y4, Y4, Y4
+	VXORPS Y5, Y5, Y5
+	VXORPS Y6, Y6, Y6
+	VXORPS Y7, Y7, Y7
+	XORQ   AX, AX
+	MOVQ   SI, R14             // lo, output m
+	MOVQ   hi+48(FP), R10
+	ADDQ   SI, R10             // hi, output m
+	LEAQ   (R14)(DX*1), R13    // lo, output m+1
+	LEAQ   (R10)(DX*1), DI     // hi, output m+1
+
+tinner:
+	VMOVUPS     (R14), Y8
+	VPERMPD     $0x1B, (R10), Y9
+	VADDPS      Y9, Y8, Y10
+	VSUBPS      Y8, Y9, Y9
+	VFMADD231PS (R8)(AX*1), Y10, Y0
+	VFMADD231PS 32(R8)(AX*1), Y9, Y1
+	VFMADD231PS 64(R8)(AX*1), Y10, Y2
+	VFMADD231PS 96(R8)(AX*1), Y9, Y3
+	VMOVUPS     (R13), Y8
+	VPERMPD     $0x1B, (DI), Y9
+	VADDPS      Y9, Y8, Y11
+	VSUBPS      Y8, Y9, Y9
+	VFMADD231PS (R8)(AX*1), Y11, Y4
+	VFMADD231PS 32(R8)(AX*1), Y9, Y5
+	VFMADD231PS 64(R8)(AX*1), Y11, Y6
+	VFMADD231PS 96(R8)(AX*1), Y9, Y7
+	ADDQ        $32, R14
+	ADDQ        $32, R13
+	SUBQ        $32, R10
+	SUBQ        $32, DI
+	ADDQ        $128, AX
+	CMPQ        AX, BX
+	JLT         tinner
+
+	// C per lane in Y0 (ch 0, m), Y2 (ch 1, m), Y4 (ch 0, m+1),
+	// Y6 (ch 1, m+1); lane sums as in dotSym4AVX2 give
+	// (s₀(m), s₀(m+1) | s₁(m), s₁(m+1)) in Y11
+	VPERMILPS  $0xB1, Y1, Y1
+	VADDSUBPS  Y1, Y0, Y0
+	VPERMILPS  $0xB1, Y3, Y3
+	VADDSUBPS  Y3, Y2, Y2
+	VPERMILPS  $0xB1, Y5, Y5
+	VADDSUBPS  Y5, Y4, Y4
+	VPERMILPS  $0xB1, Y7, Y7
+	VADDSUBPS  Y7, Y6, Y6
+	VPERM2F128 $0x20, Y2, Y0, Y8
+	VPERM2F128 $0x31, Y2, Y0, Y9
+	VADDPS     Y9, Y8, Y8
+	VPERM2F128 $0x20, Y6, Y4, Y10
+	VPERM2F128 $0x31, Y6, Y4, Y11
+	VADDPS     Y11, Y10, Y10
+	VUNPCKLPD  Y10, Y8, Y11
+	VUNPCKHPD  Y10, Y8, Y9
+	VADDPS     Y9, Y11, Y11
+
+	// rotate by (q₀(m), q₀(m+1) | q₁(m), q₁(m+1)) in float32
+	VCVTPD2PSY     Y12, X14
+	VCVTPD2PSY     Y13, X15
+	VINSERTF128    $1, X15, Y14, Y14
+	VMOVSLDUP      Y14, Y15
+	VMOVSHDUP      Y14, Y14
+	VPERMILPS      $0xB1, Y11, Y10
+	VMULPS         Y14, Y10, Y10
+	VFMADDSUB213PS Y10, Y15, Y11
+	VEXTRACTF128   $1, Y11, X10
+	CMPQ           CX, $1
+	JEQ            tone
+	VMOVUPS        X11, (R11)(R9*8)
+	VMOVUPS        X10, (R12)(R9*8)
+
+	// q ← q·r² in float64
+	MOVQ           rd+64(FP), AX
+	VPERMILPD      $5, Y12, Y8
+	VMULPD         32(AX), Y8, Y8
+	VFMADDSUB132PD (AX), Y8, Y12
+	VPERMILPD      $5, Y13, Y9
+	VMULPD         96(AX), Y9, Y9
+	VFMADDSUB132PD 64(AX), Y9, Y13
+
+	LEAQ (SI)(DX*2), SI
+	ADDQ $2, R9
+	SUBQ $2, CX
+	JNZ  touter
+	JMP  tdone
+
+tone:
+	VMOVSD X11, (R11)(R9*8)
+	VMOVSD X10, (R12)(R9*8)
+
+tdone:
+	VZEROUPPER
+	RET

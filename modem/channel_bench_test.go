@@ -99,6 +99,26 @@ func BenchmarkShiftGroup(b *testing.B) {
 			}
 		}
 	})
+	if g2 := newShiftGroup(sds[:2]); g2 != nil {
+		b.Run("single2", func(b *testing.B) {
+			b.SetBytes(2 * n)
+			for i := 0; b.Loop(); i++ {
+				for c, s := range sds[:2] {
+					outs[c] = s.Block(outs[c][:0], x, int64(i)*n)
+				}
+			}
+		})
+		b.Run("group2", func(b *testing.B) {
+			b.SetBytes(2 * n)
+			b.ReportAllocs()
+			for i := 0; b.Loop(); i++ {
+				for c := range outs {
+					outs[c] = outs[c][:0]
+				}
+				g2.block(outs[:2], x, int64(i)*n)
+			}
+		})
+	}
 	g := newShiftGroup(sds)
 	if g == nil {
 		return

@@ -29,3 +29,7 @@ func dotSym4AVX2(out *[4]*complex64, n int, x *complex64, step int, taps *float3
 func dotRealSymAVX2(dst *complex64, n int, x *complex64, step int, hd *float32, groups, hi int) {
 	panic("modem: no assembly kernels in this build")
 }
+
+func dotSym2x2AVX2(out *[2]*complex64, n int, x *complex64, step int, taps *float32, groups, hi int, q *[8]float64, rd *[16]float64) {
+	panic("modem: no assembly kernels in this build")
+}

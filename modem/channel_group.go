@@ -1,27 +1,28 @@
 package modem
 
-// shiftGroup runs the first stages of up to four channels whose windows
+// shiftGroup runs the first stages of two to four channels whose windows
 // coincide — the same tap count, decimation and output phase, as the
 // channels of one mode and bandwidth in a capture have — over a block in
-// one pass of dotSym4AVX2: each window's pair sums and differences are
-// formed once for all of them, which is most of the work of a symmetric
-// first stage besides the multiply-adds. A channel's outputs are those of
-// its ShiftDecimator.Block up to the rounding of the rotation phasor.
-// Built only where the kernels run (see newShiftGroup). With fewer than
-// four channels the kernel's spare ones repeat channel 0 — taps, phasor
-// and output — and so store the same values to the same place.
+// one kernel pass: each window's pair sums and differences are formed
+// once for all of them, which is most of the work of a symmetric first
+// stage besides the multiply-adds. Three or four channels run in
+// dotSym4AVX2 (with three, the spare lane repeats channel 0 — taps,
+// phasor and output — and so stores the same values to the same place);
+// two run in dotSym2x2AVX2, two outputs of each a pass. A channel's
+// outputs are those of its ShiftDecimator.Block up to the rounding of the
+// rotation phasor. Built only where the kernels run (see newShiftGroup).
 type shiftGroup struct {
 	sds    []*ShiftDecimator
-	taps   []float32   // per group of four pair slots: pa, −pb of channels 0…3
-	rd     [16]float64 // rotations, as dotSym4AVX2 reads them
+	taps   []float32   // per group of four pair slots: pa, −pb of each kernel lane's channel
+	rd     [16]float64 // rotations, as the kernel reads them
 	groups int         // groups of four pair slots
 }
 
-// newShiftGroup returns the group of sds (one to four decimators), or nil
-// when the kernel cannot run them together: no kernels in this build, a
+// newShiftGroup returns the group of sds (two to four decimators), or nil
+// when the kernels cannot run them together: no kernels in this build, a
 // decimator without the symmetric layout, or windows that differ.
 func newShiftGroup(sds []*ShiftDecimator) *shiftGroup {
-	if !haveKernels || len(sds) < 1 || len(sds) > 4 {
+	if !haveKernels || len(sds) < 2 || len(sds) > 4 {
 		return nil
 	}
 	s0 := sds[0]
@@ -30,15 +31,27 @@ func newShiftGroup(sds []*ShiftDecimator) *shiftGroup {
 			return nil
 		}
 	}
-	g := &shiftGroup{sds: sds, groups: s0.st.groups, taps: make([]float32, 64*s0.st.groups)}
-	for c := range 4 {
+	lanes := 4
+	if len(sds) == 2 {
+		lanes = 2
+	}
+	g := &shiftGroup{sds: sds, groups: s0.st.groups, taps: make([]float32, 16*lanes*s0.st.groups)}
+	for c := range lanes {
 		s := sds[0]
 		if c < len(sds) {
 			s = sds[c]
 		}
 		for k := range g.groups {
-			copy(g.taps[64*k+16*c:], s.st.pa[8*k:8*k+8])
-			copy(g.taps[64*k+16*c+8:], s.st.pb[8*k:8*k+8])
+			copy(g.taps[16*(lanes*k+c):], s.st.pa[8*k:8*k+8])
+			copy(g.taps[16*(lanes*k+c)+8:], s.st.pb[8*k:8*k+8])
+		}
+		if lanes == 2 {
+			// both outputs of a pass advance by r²
+			r2 := s.rot * s.rot
+			for i := range 4 {
+				g.rd[8*c+i], g.rd[8*c+4+i] = real(r2), imag(r2)
+			}
+			continue
 		}
 		b := 8*(c%2) + 2*(c/2) // (r₀, r₂) then (r₁, r₃)
 		g.rd[b], g.rd[b+1] = real(s.rot), real(s.rot)
@@ -62,18 +75,28 @@ func (g *shiftGroup) block(outs [][]complex64, win []complex64, a int64) {
 		panic("modem: kernel window too short")
 	}
 	var out [4]*complex64
+	for c := range g.sds {
+		k := len(outs[c])
+		outs[c] = grow(outs[c], cnt)[:k+cnt]
+		out[c] = &outs[c][k]
+	}
 	var q [8]float64
-	for c := range 4 {
-		if c < len(g.sds) {
-			k := len(outs[c])
-			outs[c] = grow(outs[c], cnt)[:k+cnt]
-			out[c] = &outs[c][k]
-		} else {
-			out[c] = out[0]
+	if len(g.sds) == 2 {
+		for c, s := range g.sds {
+			p := phasor(uint64(n)*s.step) * s.post
+			p1 := p * s.rot
+			q[4*c], q[4*c+1], q[4*c+2], q[4*c+3] = real(p), imag(p), real(p1), imag(p1)
 		}
+		o2 := [2]*complex64{out[0], out[1]}
+		dotSym2x2AVX2(&o2, cnt, &win[j0], s0.d, &g.taps[0], g.groups, 8*(l-4), &q, &g.rd)
+		return
+	}
+	for c := range 4 {
 		s := g.sds[0]
 		if c < len(g.sds) {
 			s = g.sds[c]
+		} else {
+			out[c] = out[0]
 		}
 		p := phasor(uint64(n)*s.step) * s.post
 		b := 4*(c%2) + 2*(c/2) // (q₀, q₂) then (q₁, q₃)

@@ -349,12 +349,13 @@ func TestReceiverMatchesChannel(t *testing.T) {
 	// the channel's audio delay-compensated, as long as the capture
 	// (round(N·48000/2.4e6) samples), to float precision (tolerance as in
 	// TestChannelBlockSizes); RunRaw with a cu8-like decoder the same.
-	// Five channels of one geometry (USB and LSB of the default band):
-	// with the kernels, four share a shiftGroup pass and one runs alone.
+	// Six channels of one geometry (USB and LSB of the default band):
+	// with the kernels, four share a shiftGroup pass and two another.
 	const tol = 1e-5
 	x := testCapture(240000 + 17)
 	cfgs := []RxConfig{{Rate: 2.4e6, Offset: 120e3}, {Rate: 2.4e6, Offset: -300e3, Mode: LSB}, {Rate: 2.4e6, Offset: -300e3, Mode: AM},
-		{Rate: 2.4e6, Offset: 500e3}, {Rate: 2.4e6, Offset: -700e3}, {Rate: 2.4e6, Offset: 301.5e3, Mode: LSB}}
+		{Rate: 2.4e6, Offset: 500e3}, {Rate: 2.4e6, Offset: -700e3}, {Rate: 2.4e6, Offset: 301.5e3, Mode: LSB},
+		{Rate: 2.4e6, Offset: 1.1e6}}
 	if haveKernels {
 		r, _ := NewReceiver(cfgs)
 		groups := 0
@@ -363,8 +364,8 @@ func TestReceiverMatchesChannel(t *testing.T) {
 				groups++
 			}
 		}
-		if groups != 1 {
-			t.Fatalf("%d shiftGroups, want 1: the test no longer exercises the grouped kernel", groups)
+		if groups != 2 {
+			t.Fatalf("%d shiftGroups, want 2: the test no longer exercises both grouped kernels", groups)
 		}
 	}
 	var want [][]float32
