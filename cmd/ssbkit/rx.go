@@ -39,7 +39,9 @@ Examples:
 --list": Hann segments, 50 % overlap, at most 256 of them; a longer capture
 is sampled by 256 segments spread evenly over it, which finds the same
 signals at a fraction of the cost of averaging every sample), then to
-decode them.`
+decode them. Signals of unknown kind (a few discrete lines, such as
+test tones, whose sideband the spectrum cannot tell) are skipped with a
+warning; tune them with --offset HZ:usb or HZ:lsb.`
 
 // rxChannel is one channel requested on the command line.
 type rxChannel struct {
