@@ -94,12 +94,19 @@ type AGC struct {
 	floor        float64 // env below which the gain saturates
 	line         []float32
 	pos          int
-	// sliding maximum of |x| over the look-ahead (a monotonic queue of
-	// sample numbers and values, ring buffers of the look-ahead's length)
-	qi    []int64
-	qv    []float64
-	qh, n int   // head and length of the queue
-	cnt   int64 // samples seen
+	// sliding maximum of |x| over the look-ahead, w = len(line) samples,
+	// by van Herk's and Gil & Werman's blocks of w: the maximum over
+	// [i−w+1, i] is max(suf[p+1], pre), p = i mod w, with pre the running
+	// maximum of the current block and suf the suffix maxima of the
+	// previous one (computed when it completes). Branch-free and exact;
+	// a monotonic queue took a mispredicted branch or two per sample. The
+	// values are kept as their IEEE 754 bit patterns, which for values
+	// ≥ 0 order as the values (IEEE Std 754-2019, clause 3.4), so the
+	// maxima are integer compares and conditional moves.
+	vals []uint64 // the current block
+	suf  []uint64 // suffix maxima of the previous block, then 0
+	pre  uint64
+	p    int // position in the current block
 }
 
 // NewAGC returns an AGC with timing t at rate Hz. It panics if t.Attack or
@@ -115,8 +122,8 @@ func NewAGC(t AGCTiming, rate float64) *AGC {
 		floor:   agcTargetPeak * math.Pow(10, -agcMaxGainDB/20.0),
 		line:    make([]float32, max(1, int(math.Round(agcLookahead*t.Attack*rate)))),
 	}
-	a.qi = make([]int64, len(a.line)+1)
-	a.qv = make([]float64, len(a.line)+1)
+	a.vals = make([]uint64, len(a.line))
+	a.suf = make([]uint64, len(a.line)+1)
 	a.Reset()
 	return a
 }
@@ -130,24 +137,33 @@ func (a *AGC) Reset() {
 	a.hangC = 0
 	a.pos = 0
 	clear(a.line)
-	a.qh, a.n, a.cnt = 0, 0, 0
+	clear(a.suf)
+	a.pre, a.p = 0, 0
 }
 
-// peak pushes |x| and returns the largest of the last len(line) values.
+// peak pushes v = |x| (≥ 0) and returns the largest of the last len(line)
+// values (of those seen, at the start).
 func (a *AGC) peak(v float64) float64 {
-	c := len(a.qi)
-	for a.n > 0 && a.qv[(a.qh+a.n-1)%c] <= v {
-		a.n--
+	b := math.Float64bits(v)
+	p := a.p
+	a.vals[p] = b
+	if p == 0 {
+		a.pre = b
+	} else {
+		a.pre = max(a.pre, b)
 	}
-	k := (a.qh + a.n) % c
-	a.qi[k], a.qv[k] = a.cnt, v
-	a.n++
-	if a.qi[a.qh] <= a.cnt-int64(len(a.line)) {
-		a.qh = (a.qh + 1) % c
-		a.n--
+	m := max(a.suf[p+1], a.pre)
+	if p++; p == len(a.vals) {
+		// the block is complete: its suffix maxima serve the next one
+		var s uint64
+		for k := len(a.vals) - 1; k >= 0; k-- {
+			s = max(s, a.vals[k])
+			a.suf[k] = s
+		}
+		p = 0
 	}
-	a.cnt++
-	return a.qv[a.qh]
+	a.p = p
+	return math.Float64frombits(m)
 }
 
 // GainDB returns the gain now applied, in dB.
@@ -169,7 +185,7 @@ func (a *AGC) Process(dst, src []float32) []float32 {
 		case a.hangC > 0:
 			a.hangC--
 		default:
-			a.env = math.Max(a.env*a.decay, a.floor)
+			a.env = max(a.env*a.decay, a.floor)
 		}
 		y := a.line[a.pos]
 		a.line[a.pos] = x

@@ -733,3 +733,44 @@ func TestAudioRateIsWorkRate(t *testing.T) {
 		t.Errorf("amplitude %.5f, want %.5f (%.3f dB)", got, a, d)
 	}
 }
+
+// TestAGCPeak checks the sliding maximum against the plain maximum of the
+// last len(line) values, on seeded random values with runs of equal ones
+// (ties keep the newer sample).
+func TestAGCPeak(t *testing.T) {
+	a := NewAGC(AGCMedium.Timing(), 48000)
+	w := len(a.line)
+	r := rand.New(rand.NewPCG(21, 22))
+	var hist []float64
+	for i := range 20000 {
+		v := r.Float64()
+		if i%7 == 0 && i > 0 {
+			v = hist[len(hist)-1]
+		}
+		if i%1000 < 3 {
+			v = 2 // a short burst, then a long fall
+		}
+		hist = append(hist, v)
+		want := 0.0
+		for _, u := range hist[max(0, len(hist)-w):] {
+			want = max(want, u)
+		}
+		if got := a.peak(v); got != want {
+			t.Fatalf("sample %d: peak %g, want %g", i, got, want)
+		}
+	}
+}
+
+func BenchmarkAGC(b *testing.B) {
+	a := NewAGC(AGCMedium.Timing(), 48000)
+	x := make([]float32, 48000)
+	r := rand.New(rand.NewPCG(1, 2))
+	for i := range x {
+		x[i] = float32(r.NormFloat64() * 0.1 * (1 + math.Sin(float64(i)/3000)))
+	}
+	y := make([]float32, len(x))
+	b.SetBytes(int64(len(x)))
+	for b.Loop() {
+		a.Process(y, x)
+	}
+}
