@@ -1,16 +1,14 @@
 package modem
 
-// shiftGroup runs the first stages of two to four channels whose windows
+// shiftGroup runs the first stages of four or two channels whose windows
 // coincide — the same tap count, decimation and output phase, as the
 // channels of one mode and bandwidth in a capture have — over a block in
 // one kernel pass: each window's pair sums and differences are formed
 // once for all of them, which is most of the work of a symmetric first
-// stage besides the multiply-adds. Three or four channels run in
-// dotSym4AVX2 (with three, the spare lane repeats channel 0 — taps,
-// phasor and output — and so stores the same values to the same place);
-// two run in dotSym2x2AVX2, two outputs of each a pass. A channel's
-// outputs are those of its ShiftDecimator.Block up to the rounding of the
-// rotation phasor. Built only where the kernels run (see newShiftGroup).
+// stage besides the multiply-adds. Four channels run in dotSym4AVX2, two
+// in dotSym2x2AVX2 (two outputs of each a pass). A channel's outputs are
+// those of its ShiftDecimator.Block up to the rounding of the rotation
+// phasor. Built only where the kernels run (see newShiftGroup).
 type shiftGroup struct {
 	sds    []*ShiftDecimator
 	taps   []float32   // per group of four pair slots: pa, −pb of each kernel lane's channel
@@ -18,11 +16,13 @@ type shiftGroup struct {
 	groups int         // groups of four pair slots
 }
 
-// newShiftGroup returns the group of sds (two to four decimators), or nil
-// when the kernels cannot run them together: no kernels in this build, a
-// decimator without the symmetric layout, or windows that differ.
+// newShiftGroup returns the group of sds (four or two decimators), or nil
+// when the kernels cannot run them together: no kernels in this build,
+// another number of decimators, one without the symmetric layout, or
+// windows that differ.
 func newShiftGroup(sds []*ShiftDecimator) *shiftGroup {
-	if !haveKernels || len(sds) < 2 || len(sds) > 4 {
+	lanes := len(sds)
+	if !haveKernels || (lanes != 2 && lanes != 4) {
 		return nil
 	}
 	s0 := sds[0]
@@ -31,16 +31,8 @@ func newShiftGroup(sds []*ShiftDecimator) *shiftGroup {
 			return nil
 		}
 	}
-	lanes := 4
-	if len(sds) == 2 {
-		lanes = 2
-	}
 	g := &shiftGroup{sds: sds, groups: s0.st.groups, taps: make([]float32, 16*lanes*s0.st.groups)}
-	for c := range lanes {
-		s := sds[0]
-		if c < len(sds) {
-			s = sds[c]
-		}
+	for c, s := range sds {
 		for k := range g.groups {
 			copy(g.taps[16*(lanes*k+c):], s.st.pa[8*k:8*k+8])
 			copy(g.taps[16*(lanes*k+c)+8:], s.st.pb[8*k:8*k+8])
@@ -91,13 +83,7 @@ func (g *shiftGroup) block(outs [][]complex64, win []complex64, a int64) {
 		dotSym2x2AVX2(&o2, cnt, &win[j0], s0.d, &g.taps[0], g.groups, 8*(l-4), &q, &g.rd)
 		return
 	}
-	for c := range 4 {
-		s := g.sds[0]
-		if c < len(g.sds) {
-			s = g.sds[c]
-		} else {
-			out[c] = out[0]
-		}
+	for c, s := range g.sds {
 		p := phasor(uint64(n)*s.step) * s.post
 		b := 4*(c%2) + 2*(c/2) // (q₀, q₂) then (q₁, q₃)
 		q[b], q[b+1] = real(p), imag(p)

@@ -331,10 +331,9 @@ type firstUnit struct {
 }
 
 // firstUnits groups the channels whose first-stage windows coincide into
-// shiftGroups of four, then of two, and runs the rest alone: three
-// channels cost less as two and one than in the four-channel kernel
-// (BenchmarkShiftGroup: 1.4 µs for two, 1.0 µs for one, 2.55 µs for four
-// or three, per 4096 samples).
+// shiftGroups of four, then of two, and runs the rest alone (three as two
+// and one: BenchmarkShiftGroup, per 4096 samples, 2.55 µs for four, 1.4
+// µs for two, 1.0 µs for one).
 func (r *Receiver) firstUnits() []firstUnit {
 	type key struct{ l, d, phase int }
 	var order []key
