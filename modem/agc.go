@@ -96,7 +96,7 @@ type AGC struct {
 	pos          int
 	// sliding maximum of |x| over the look-ahead, w = len(line) samples,
 	// by van Herk's and Gil & Werman's blocks of w: the maximum over
-	// [i−w+1, i] is max(suf[p+1], pre), p = i mod w, with pre the running
+	// [i−w+1, i] is max(suf[p+1], pre), p = i mod w = pos, with pre the running
 	// maximum of the current block and suf the suffix maxima of the
 	// previous one (computed when it completes). Branch-free and exact;
 	// a monotonic queue took a mispredicted branch or two per sample. The
@@ -105,8 +105,7 @@ type AGC struct {
 	// maxima are integer compares and conditional moves.
 	vals []uint64 // the current block
 	suf  []uint64 // suffix maxima of the previous block, then 0
-	pre  uint64
-	p    int // position in the current block
+	pre  uint64   // (the position in the block is pos, the delay line's)
 }
 
 // NewAGC returns an AGC with timing t at rate Hz. It panics if t.Attack or
@@ -138,32 +137,33 @@ func (a *AGC) Reset() {
 	a.pos = 0
 	clear(a.line)
 	clear(a.suf)
-	a.pre, a.p = 0, 0
+	a.pre = 0
 }
 
-// peak pushes v = |x| (≥ 0) and returns the largest of the last len(line)
-// values (of those seen, at the start).
+// peak pushes v = |x| (≥ 0) at block position a.pos and returns the
+// largest of the last len(line) values (of those seen, at the start).
+// Process then stores x in the delay line at a.pos and advances it,
+// calling endBlock when a block is complete; peak itself stays small
+// enough to be inlined.
 func (a *AGC) peak(v float64) float64 {
 	b := math.Float64bits(v)
-	p := a.p
-	a.vals[p] = b
-	if p == 0 {
+	a.vals[a.pos] = b
+	if a.pos == 0 {
 		a.pre = b
 	} else {
 		a.pre = max(a.pre, b)
 	}
-	m := max(a.suf[p+1], a.pre)
-	if p++; p == len(a.vals) {
-		// the block is complete: its suffix maxima serve the next one
-		var s uint64
-		for k := len(a.vals) - 1; k >= 0; k-- {
-			s = max(s, a.vals[k])
-			a.suf[k] = s
-		}
-		p = 0
+	return math.Float64frombits(max(a.suf[a.pos+1], a.pre))
+}
+
+// endBlock computes the suffix maxima of the block just completed, which
+// serve the next one.
+func (a *AGC) endBlock() {
+	var s uint64
+	for k := len(a.vals) - 1; k >= 0; k-- {
+		s = max(s, a.vals[k])
+		a.suf[k] = s
 	}
-	a.p = p
-	return math.Float64frombits(m)
 }
 
 // GainDB returns the gain now applied, in dB.
@@ -176,24 +176,27 @@ func (a *AGC) Process(dst, src []float32) []float32 {
 		dst = make([]float32, len(src))
 	}
 	dst = dst[:len(src)]
+	env, hangC := a.env, a.hangC
 	for i, x := range src {
 		v := a.peak(math.Abs(float64(x)))
 		switch {
-		case v > a.env:
-			a.env += a.aAttack * (v - a.env)
-			a.hangC = a.hangN
-		case a.hangC > 0:
-			a.hangC--
+		case v > env:
+			env += a.aAttack * (v - env)
+			hangC = a.hangN
+		case hangC > 0:
+			hangC--
 		default:
-			a.env = max(a.env*a.decay, a.floor)
+			env = max(env*a.decay, a.floor)
 		}
 		y := a.line[a.pos]
 		a.line[a.pos] = x
 		a.pos++
 		if a.pos == len(a.line) {
+			a.endBlock()
 			a.pos = 0
 		}
-		dst[i] = float32(float64(y) * agcTargetPeak / a.env)
+		dst[i] = float32(float64(y) * agcTargetPeak / env)
 	}
+	a.env, a.hangC = env, hangC
 	return dst
 }

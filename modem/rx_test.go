@@ -734,9 +734,9 @@ func TestAudioRateIsWorkRate(t *testing.T) {
 	}
 }
 
-// TestAGCPeak checks the sliding maximum against the plain maximum of the
-// last len(line) values, on seeded random values with runs of equal ones
-// (ties keep the newer sample).
+// TestAGCPeak checks the sliding maximum (peak, endBlock) against the
+// plain maximum of the last len(line) values, on seeded random values
+// with runs of equal ones and short bursts.
 func TestAGCPeak(t *testing.T) {
 	a := NewAGC(AGCMedium.Timing(), 48000)
 	w := len(a.line)
@@ -757,6 +757,10 @@ func TestAGCPeak(t *testing.T) {
 		}
 		if got := a.peak(v); got != want {
 			t.Fatalf("sample %d: peak %g, want %g", i, got, want)
+		}
+		if a.pos++; a.pos == w { // as Process does
+			a.endBlock()
+			a.pos = 0
 		}
 	}
 }
