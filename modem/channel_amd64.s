@@ -316,6 +316,76 @@ idone:
 	VZEROUPPER
 	RET
 
+// Shared pieces of the symmetric kernels below.
+//
+// SUMS2(b) adds the four complex lanes of Y0 and of b, as
+// (l₀ + l₂) + (l₁ + l₃), into X4 = (Σ Y0, Σ b); it uses Y5.
+#define SUMS2(b) \
+	VPERM2F128   $0x20, b, Y0, Y4; \
+	VPERM2F128   $0x31, b, Y0, Y5; \
+	VADDPS       Y5, Y4, Y4; \
+	VPERMILPD    $5, Y4, Y5; \
+	VADDPS       Y5, Y4, Y4; \
+	VEXTRACTF128 $1, Y4, X5; \
+	VUNPCKLPD    X5, X4, X4
+
+// ZERO8 clears the accumulators Y0…Y7.
+#define ZERO8 \
+	VXORPS Y0, Y0, Y0; \
+	VXORPS Y1, Y1, Y1; \
+	VXORPS Y2, Y2, Y2; \
+	VXORPS Y3, Y3, Y3; \
+	VXORPS Y4, Y4, Y4; \
+	VXORPS Y5, Y5, Y5; \
+	VXORPS Y6, Y6, Y6; \
+	VXORPS Y7, Y7, Y7
+
+// SUMS4 turns the four lanes' accumulators (A, B) = (Y0, Y1), (Y2, Y3),
+// (Y4, Y5), (Y6, Y7) into C = (A.re − B.im, A.im + B.re), then sums each
+// C's four complex lanes in SUMS2's order, giving (s₀, s₂ | s₁, s₃) in
+// Y11; it uses Y8…Y10.
+#define SUMS4 \
+	VPERMILPS  $0xB1, Y1, Y1; \
+	VADDSUBPS  Y1, Y0, Y0; \
+	VPERMILPS  $0xB1, Y3, Y3; \
+	VADDSUBPS  Y3, Y2, Y2; \
+	VPERMILPS  $0xB1, Y5, Y5; \
+	VADDSUBPS  Y5, Y4, Y4; \
+	VPERMILPS  $0xB1, Y7, Y7; \
+	VADDSUBPS  Y7, Y6, Y6; \
+	VPERM2F128 $0x20, Y2, Y0, Y8; \
+	VPERM2F128 $0x31, Y2, Y0, Y9; \
+	VADDPS     Y9, Y8, Y8; \
+	VPERM2F128 $0x20, Y6, Y4, Y10; \
+	VPERM2F128 $0x31, Y6, Y4, Y11; \
+	VADDPS     Y11, Y10, Y10; \
+	VUNPCKLPD  Y10, Y8, Y11; \
+	VUNPCKHPD  Y10, Y8, Y9; \
+	VADDPS     Y9, Y11, Y11
+
+// ROTATE4 multiplies Y11 by the float64 phasors (Y12 | Y13) rounded to
+// float32; it uses Y10, Y14, Y15.
+#define ROTATE4 \
+	VCVTPD2PSY     Y12, X14; \
+	VCVTPD2PSY     Y13, X15; \
+	VINSERTF128    $1, X15, Y14, Y14; \
+	VMOVSLDUP      Y14, Y15; \
+	VMOVSHDUP      Y14, Y14; \
+	VPERMILPS      $0xB1, Y11, Y10; \
+	VMULPS         Y14, Y10, Y10; \
+	VFMADDSUB213PS Y10, Y15, Y11
+
+// ADVANCE2 multiplies the phasors Y12, Y13 (float64) by the rotations at
+// AX (Re, Im for Y12, then for Y13, each duplicated to a vector); it uses
+// Y8, Y9.
+#define ADVANCE2 \
+	VPERMILPD      $5, Y12, Y8; \
+	VMULPD         32(AX), Y8, Y8; \
+	VFMADDSUB132PD (AX), Y8, Y12; \
+	VPERMILPD      $5, Y13, Y9; \
+	VMULPD         96(AX), Y9, Y9; \
+	VFMADDSUB132PD 64(AX), Y9, Y13
+
 // func dotSymAVX2(dst *complex64, n int, x *complex64, step int, pa, pb *float32, groups, hi int, q *[4]float64, r2 complex128)
 //
 // The symmetric form of ShiftDecimator.blockSym, two outputs per pass:
@@ -394,13 +464,7 @@ sinner:
 	VADDSUBPS    Y1, Y0, Y0
 	VPERMILPS    $0xB1, Y3, Y3
 	VADDSUBPS    Y3, Y2, Y2
-	VPERM2F128   $0x20, Y2, Y0, Y4
-	VPERM2F128   $0x31, Y2, Y0, Y5
-	VADDPS       Y5, Y4, Y4
-	VPERMILPD    $5, Y4, Y5
-	VADDPS       Y5, Y4, Y4
-	VEXTRACTF128 $1, Y4, X5
-	VUNPCKLPD    X5, X4, X4
+	SUMS2(Y2)
 
 	// rotate by q in float32, then q ← q·r² in float64
 	VCVTPD2PSY     Y8, X5
@@ -462,14 +526,7 @@ TEXT ·dotSym4AVX2(SB), NOSPLIT, $0-72
 	XORQ    R9, R9             // output index
 
 fouter:
-	VXORPS Y0, Y0, Y0
-	VXORPS Y1, Y1, Y1
-	VXORPS Y2, Y2, Y2
-	VXORPS Y3, Y3, Y3
-	VXORPS Y4, Y4, Y4
-	VXORPS Y5, Y5, Y5
-	VXORPS Y6, Y6, Y6
-	VXORPS Y7, Y7, Y7
+	ZERO8
 	XORQ   AX, AX
 	MOVQ   SI, R14             // lo
 	MOVQ   hi+48(FP), R10
@@ -494,50 +551,16 @@ finner:
 	CMPQ        AX, BX
 	JLT         finner
 
-	// C = (A.re − B.im, A.im + B.re) per channel, in Y0, Y2, Y4, Y6
-	VPERMILPS  $0xB1, Y1, Y1
-	VADDSUBPS  Y1, Y0, Y0
-	VPERMILPS  $0xB1, Y3, Y3
-	VADDSUBPS  Y3, Y2, Y2
-	VPERMILPS  $0xB1, Y5, Y5
-	VADDSUBPS  Y5, Y4, Y4
-	VPERMILPS  $0xB1, Y7, Y7
-	VADDSUBPS  Y7, Y6, Y6
-	// lane sums: (a, b) = (l₀ + l₂, l₁ + l₃) per channel, then a + b,
-	// giving (s₀, s₂ | s₁, s₃) in Y11
-	VPERM2F128 $0x20, Y2, Y0, Y8
-	VPERM2F128 $0x31, Y2, Y0, Y9
-	VADDPS     Y9, Y8, Y8      // (a₀, b₀ | a₁, b₁)
-	VPERM2F128 $0x20, Y6, Y4, Y10
-	VPERM2F128 $0x31, Y6, Y4, Y11
-	VADDPS     Y11, Y10, Y10   // (a₂, b₂ | a₃, b₃)
-	VUNPCKLPD  Y10, Y8, Y11    // (a₀, a₂ | a₁, a₃)
-	VUNPCKHPD  Y10, Y8, Y9     // (b₀, b₂ | b₁, b₃)
-	VADDPS     Y9, Y11, Y11
-
-	// rotate by (q₀, q₂ | q₁, q₃) in float32
-	VCVTPD2PSY     Y12, X14
-	VCVTPD2PSY     Y13, X15
-	VINSERTF128    $1, X15, Y14, Y14
-	VMOVSLDUP      Y14, Y15
-	VMOVSHDUP      Y14, Y14
-	VPERMILPS      $0xB1, Y11, Y10
-	VMULPS         Y14, Y10, Y10
-	VFMADDSUB213PS Y10, Y15, Y11
+	SUMS4
+	ROTATE4                    // by (q₀, q₂ | q₁, q₃)
 	VMOVSD         X11, (R11)(R9*8)
 	VMOVHPS        X11, (R13)(R9*8)
 	VEXTRACTF128   $1, Y11, X10
 	VMOVSD         X10, (R12)(R9*8)
 	VMOVHPS        X10, (DI)(R9*8)
 
-	// q ← q·r in float64
-	MOVQ           rd+64(FP), AX
-	VPERMILPD      $5, Y12, Y8
-	VMULPD         32(AX), Y8, Y8
-	VFMADDSUB132PD (AX), Y8, Y12
-	VPERMILPD      $5, Y13, Y9
-	VMULPD         96(AX), Y9, Y9
-	VFMADDSUB132PD 64(AX), Y9, Y13
+	MOVQ     rd+64(FP), AX
+	ADVANCE2                   // q ← q·r
 
 	ADDQ DX, SI
 	INCQ R9
@@ -603,13 +626,7 @@ yinner:
 
 	// the sums of four complex lanes, (l₀ + l₂) + (l₁ + l₃), of both
 	// outputs into X4
-	VPERM2F128   $0x20, Y1, Y0, Y4
-	VPERM2F128   $0x31, Y1, Y0, Y5
-	VADDPS       Y5, Y4, Y4
-	VPERMILPD    $5, Y4, Y5
-	VADDPS       Y5, Y4, Y4
-	VEXTRACTF128 $1, Y4, X5
-	VUNPCKLPD    X5, X4, X4
+	SUMS2(Y1)
 	CMPQ         CX, $1
 	JEQ          yone
 	VMOVUPS      X4, (DI)
@@ -662,14 +679,7 @@ touter:
 	XORQ DX, DX                // the odd last output: window m+1 repeats window m
 
 tpair:
-	VXORPS Y0, Y0, Y0
-	VXORPS Y1, Y1, Y1
-	VXORPS Y2, Y2, Y2
-	VXORPS Y3, Y3, Y3
-	VXORPS Y4, Y4, Y4
-	VXORPS Y5, Y5, Y5
-	VXORPS Y6, Y6, Y6
-	VXORPS Y7, Y7, Y7
+	ZERO8
 	XORQ   AX, AX
 	MOVQ   SI, R14             // lo, output m
 	MOVQ   hi+48(FP), R10
@@ -702,50 +712,18 @@ tinner:
 	CMPQ        AX, BX
 	JLT         tinner
 
-	// C per lane in Y0 (ch 0, m), Y2 (ch 1, m), Y4 (ch 0, m+1),
-	// Y6 (ch 1, m+1); lane sums as in dotSym4AVX2 give
+	// lanes Y0 (ch 0, m), Y2 (ch 1, m), Y4 (ch 0, m+1), Y6 (ch 1, m+1):
 	// (s₀(m), s₀(m+1) | s₁(m), s₁(m+1)) in Y11
-	VPERMILPS  $0xB1, Y1, Y1
-	VADDSUBPS  Y1, Y0, Y0
-	VPERMILPS  $0xB1, Y3, Y3
-	VADDSUBPS  Y3, Y2, Y2
-	VPERMILPS  $0xB1, Y5, Y5
-	VADDSUBPS  Y5, Y4, Y4
-	VPERMILPS  $0xB1, Y7, Y7
-	VADDSUBPS  Y7, Y6, Y6
-	VPERM2F128 $0x20, Y2, Y0, Y8
-	VPERM2F128 $0x31, Y2, Y0, Y9
-	VADDPS     Y9, Y8, Y8
-	VPERM2F128 $0x20, Y6, Y4, Y10
-	VPERM2F128 $0x31, Y6, Y4, Y11
-	VADDPS     Y11, Y10, Y10
-	VUNPCKLPD  Y10, Y8, Y11
-	VUNPCKHPD  Y10, Y8, Y9
-	VADDPS     Y9, Y11, Y11
-
-	// rotate by (q₀(m), q₀(m+1) | q₁(m), q₁(m+1)) in float32
-	VCVTPD2PSY     Y12, X14
-	VCVTPD2PSY     Y13, X15
-	VINSERTF128    $1, X15, Y14, Y14
-	VMOVSLDUP      Y14, Y15
-	VMOVSHDUP      Y14, Y14
-	VPERMILPS      $0xB1, Y11, Y10
-	VMULPS         Y14, Y10, Y10
-	VFMADDSUB213PS Y10, Y15, Y11
+	SUMS4
+	ROTATE4                    // by (q₀(m), q₀(m+1) | q₁(m), q₁(m+1))
 	VEXTRACTF128   $1, Y11, X10
 	CMPQ           CX, $1
 	JEQ            tone
 	VMOVUPS        X11, (R11)(R9*8)
 	VMOVUPS        X10, (R12)(R9*8)
 
-	// q ← q·r² in float64
-	MOVQ           rd+64(FP), AX
-	VPERMILPD      $5, Y12, Y8
-	VMULPD         32(AX), Y8, Y8
-	VFMADDSUB132PD (AX), Y8, Y12
-	VPERMILPD      $5, Y13, Y9
-	VMULPD         96(AX), Y9, Y9
-	VFMADDSUB132PD 64(AX), Y9, Y13
+	MOVQ     rd+64(FP), AX
+	ADVANCE2                   // q ← q·r²
 
 	LEAQ (SI)(DX*2), SI
 	ADDQ $2, R9
