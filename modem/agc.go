@@ -95,7 +95,9 @@ type AGC struct {
 	line         []float32
 	pos          int
 	// sliding maximum of |x| over the look-ahead, w = len(line) samples,
-	// by van Herk's and Gil & Werman's blocks of w: the maximum over
+	// by van Herk's and Gil & Werman's blocks of w (M. van Herk, Pattern
+	// Recognit. Lett. 13(7), 1992; J. Gil & M. Werman, IEEE Trans. PAMI
+	// 15(5), 1993 — from memory): the maximum over
 	// [i−w+1, i] is max(suf[p+1], pre), p = i mod w = pos, with pre the running
 	// maximum of the current block and suf the suffix maxima of the
 	// previous one (computed when it completes). Branch-free and exact;

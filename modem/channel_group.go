@@ -62,8 +62,8 @@ func (g *shiftGroup) block(outs [][]complex64, win []complex64, a int64) {
 	if cnt == 0 {
 		return
 	}
-	j0 := int(n - a)
-	if (cnt-1)*s0.d+l > len(win)-j0 {
+	w := win[n-a:] // the first output's window onwards
+	if (cnt-1)*s0.d+l > len(w) {
 		panic("modem: kernel window too short")
 	}
 	var out [4]*complex64
@@ -80,7 +80,7 @@ func (g *shiftGroup) block(outs [][]complex64, win []complex64, a int64) {
 			q[4*c], q[4*c+1], q[4*c+2], q[4*c+3] = real(p), imag(p), real(p1), imag(p1)
 		}
 		o2 := [2]*complex64{out[0], out[1]}
-		dotSym2x2AVX2(&o2, cnt, &win[j0], s0.d, &g.taps[0], g.groups, 8*(l-4), &q, &g.rd)
+		dotSym2x2AVX2(&o2, cnt, &w[0], s0.d, &g.taps[0], g.groups, 8*(l-4), &q, &g.rd)
 		return
 	}
 	for c, s := range g.sds {
@@ -88,5 +88,5 @@ func (g *shiftGroup) block(outs [][]complex64, win []complex64, a int64) {
 		b := 4*(c%2) + 2*(c/2) // (q₀, q₂) then (q₁, q₃)
 		q[b], q[b+1] = real(p), imag(p)
 	}
-	dotSym4AVX2(&out, cnt, &win[j0], s0.d, &g.taps[0], g.groups, 8*(l-4), &q, &g.rd)
+	dotSym4AVX2(&out, cnt, &w[0], s0.d, &g.taps[0], g.groups, 8*(l-4), &q, &g.rd)
 }

@@ -307,7 +307,7 @@ func TestSymKernelMatchesGo(t *testing.T) {
 				a := int64(r.IntN(1 << 20))
 				a -= a % int64(d)
 				got := s.Block(nil, win, a)
-				want := s.blockSym(nil, win, a, a, int64(nb))
+				want := s.blockSym(nil, win, a, cnt) // a ≡ phase 0 (mod d): the first window is win's
 				if len(got) != cnt || len(want) != cnt {
 					t.Fatalf("L=%d d=%d: %d and %d outputs, want %d", l, d, len(got), len(want), cnt)
 				}

@@ -136,18 +136,18 @@ func (s *ShiftDecimator) Process(dst, src []complex64) []complex64 {
 // block are appended to dst. Blocks of one stream may be run in any order
 // and on any goroutine; their outputs, concatenated, equal Process's.
 func (s *ShiftDecimator) Block(dst, win []complex64, a int64) []complex64 {
-	nb := int64(len(win) - (s.l - 1))
-	n, _ := s.span(a, nb)
-	if n >= a+nb {
+	n, cnt := s.span(a, int64(len(win)-(s.l-1)))
+	if cnt == 0 {
 		return dst
 	}
+	w := win[n-a:] // the first output's window onwards
 	switch {
 	case s.st != nil:
-		return s.blockSymKernel(dst, win, a, n, nb)
+		return s.blockSymKernel(dst, w, n, cnt)
 	case s.sym && s.kt == nil:
-		return s.blockSym(dst, win, a, n, nb)
+		return s.blockSym(dst, w, n, cnt)
 	}
-	return s.blockDot(dst, win, a, n, nb)
+	return s.blockDot(dst, w, n, cnt)
 }
 
 // span returns the absolute index n of the first output of a block of
@@ -181,30 +181,28 @@ func grow(dst []complex64, cnt int) []complex64 {
 }
 
 // blockSymKernel is blockSym by the assembly kernel.
-func (s *ShiftDecimator) blockSymKernel(dst, win []complex64, a, n, nb int64) []complex64 {
-	j0 := int(n - a)
-	cnt := (int(nb)-1-j0)/s.d + 1
+func (s *ShiftDecimator) blockSymKernel(dst, w []complex64, n int64, cnt int) []complex64 {
 	k := len(dst)
 	dst = grow(dst, cnt)
 	p := phasor(uint64(n)*s.step) * s.post
-	s.st.dotRotate(dst[k:k+cnt], win[j0:], s.d, p, s.rot)
+	s.st.dotRotate(dst[k:k+cnt], w, s.d, p, s.rot)
 	return dst[:k+cnt]
 }
 
 // blockDot is Block as the dot products of the folded taps with every
 // d-th window (by the assembly kernel when there is one, else its Go
-// twin), then the output rotation.
-func (s *ShiftDecimator) blockDot(dst, win []complex64, a, n, nb int64) []complex64 {
-	j0 := int(n - a)
-	cnt := (int(nb)-1-j0)/s.d + 1
+// twin), then the output rotation. Like blockSym and blockSymKernel it
+// appends cnt outputs, the first of absolute index n, whose windows start
+// at w, w+d, ….
+func (s *ShiftDecimator) blockDot(dst, w []complex64, n int64, cnt int) []complex64 {
 	k := len(dst)
 	dst = grow(dst, cnt)
 	out := dst[k : k+cnt]
 	p := phasor(uint64(n) * s.step)
 	if s.kt != nil {
-		s.kt.dotRotate(out, win[j0:], s.d, p, s.rot)
+		s.kt.dotRotate(out, w, s.d, p, s.rot)
 	} else {
-		dotComplexGo(out, win[j0:], s.d, s.cr, s.ci)
+		dotComplexGo(out, w, s.d, s.cr, s.ci)
 		rotate(out, p, s.rot)
 	}
 	return dst[:k+cnt]
@@ -231,7 +229,7 @@ func rotate(out []complex64, p, r complex128) {
 //
 // so each pair costs four real multiplications instead of eight and the
 // common factor e^{jωc} joins the output rotation.
-func (s *ShiftDecimator) blockSym(dst, win []complex64, a, n, nb int64) []complex64 {
+func (s *ShiftDecimator) blockSym(dst, win []complex64, n int64, cnt int) []complex64 {
 	l := s.l
 	p := phasor(uint64(n)*s.step) * s.post
 	pr, pi := real(p), imag(p)
@@ -240,8 +238,8 @@ func (s *ShiftDecimator) blockSym(dst, win []complex64, a, n, nb int64) []comple
 	np := len(pa)
 	hc := s.hc
 	odd := l%2 == 1
-	for j := int(n - a); j < int(nb); j += s.d {
-		w := win[j : j+l]
+	for m := range cnt {
+		w := win[m*s.d : m*s.d+l]
 		lo := w[:np]
 		hi := w[l-np:]
 		hi = hi[:len(lo)]
