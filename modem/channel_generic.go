@@ -33,3 +33,23 @@ func dotRealSymAVX2(dst *complex64, n int, x *complex64, step int, hd *float32, 
 func dotSym2x2AVX2(out *[2]*complex64, n int, x *complex64, step int, taps *float32, groups, hi int, q *[8]float64, rd *[16]float64) {
 	panic("modem: no assembly kernels in this build")
 }
+
+func bankPassAVX2(x *complex64, m, l int, tw *complex64) {
+	panic("modem: no assembly kernels in this build")
+}
+
+func bankLast4AVX2(x *complex64, m int) {
+	panic("modem: no assembly kernels in this build")
+}
+
+func bankLast2AVX2(x *complex64, m int) {
+	panic("modem: no assembly kernels in this build")
+}
+
+func bankFoldAVX2(vb, win *complex64, gq *float32, m, k int) {
+	panic("modem: no assembly kernels in this build")
+}
+
+func bankGatherAVX2(out *complex64, stride int, vb *complex64, rows, offs *int32, n int, sign *[8]uint32) {
+	panic("modem: no assembly kernels in this build")
+}

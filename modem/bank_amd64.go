@@ -1,0 +1,36 @@
+//go:build amd64 && !purego
+
+package modem
+
+// The Channeliser's kernels (bank_amd64.s); their Go twins in bank.go and
+// bank_fft.go are the reference loops, compared on random data by
+// TestBankKernelsMatchGo.
+
+// bankFoldAVX2 is bankFoldGo for four whole windows spaced lane = m/2
+// apart, vb[4q + j] = Σ_{p<k} g[q+pm]·win[j·m/2 + q + pm] for q < m (a
+// multiple of eight), with the taps in the layout of bankTapsLayout.
+//
+//go:noescape
+func bankFoldAVX2(vb, win *complex64, gq *float32, m, k int)
+
+// bankPassAVX2 is bankPassGo over the m four-lane elements at x, blocks
+// of length l ≥ 8, the twiddles tw interleaved as in bankFFT.
+//
+//go:noescape
+func bankPassAVX2(x *complex64, m, l int, tw *complex64)
+
+// bankLast4AVX2 is bankLast4Go over m four-lane elements.
+//
+//go:noescape
+func bankLast4AVX2(x *complex64, m int)
+
+// bankLast2AVX2 is bankLast2Go over m four-lane elements.
+//
+//go:noescape
+func bankLast2AVX2(x *complex64, m int)
+
+// bankGatherAVX2 is bankGather for four lanes: for i < n, the 32 bytes at
+// vb[offs[i]] XOR sign to out + rows[i]·stride bytes.
+//
+//go:noescape
+func bankGatherAVX2(out *complex64, stride int, vb *complex64, rows, offs *int32, n int, sign *[8]uint32)
