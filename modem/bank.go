@@ -11,41 +11,45 @@ import (
 type ChanneliserSpec struct {
 	Rate  float64 // input sample rate, Hz (required)
 	Bands int     // number of sub-bands M, a power of two from 4 to 4096 (required)
+	// Decim is the decimation D of every sub-band, from 2 to M/2 (at
+	// least twofold oversampling); 0 means M/2.
+	Decim int
 	// Pass is the half-width (Hz) of the band around each sub-band's centre
 	// that is kept flat (ripple ±δ) and free of aliases (at most δ, δ =
-	// 10^(−AttenDB/20)); it must be below Rate/Bands. 0 means
+	// 10^(−AttenDB/20)); it must be below Rate/(2·Decim). 0 means
 	// Rate/(2·Bands), half the spacing of the sub-bands.
 	Pass    float64
 	AttenDB float64 // default 80
 }
 
-// Channeliser is a 2×-oversampled polyphase DFT analysis filter bank: it
+// Channeliser is an oversampled polyphase DFT analysis filter bank: it
 // splits a complex capture at rate fs into M sub-bands centred on
 // k·fs/M (k = 0…M−1; k ≥ M/2 are the negative frequencies (k−M)·fs/M),
 // each mixed to zero, low-pass filtered by the prototype h and decimated
-// by D = M/2 to the rate 2fs/M:
+// by D ≤ M/2 to the rate fs/D:
 //
 //	y_k[j] = Σ_l h[l]·x[n−l]·e^{−j2πk(n−l)/M},  n = (j+1)·D − 1,
 //
 // which is what a ShiftDecimator with taps h tuned to k·fs/M computes, for
-// all k at the cost of one filter and one FFT. With the window of the N =
-// K·M samples ending at n, w[i] = x[n−N+1+i], and g[i] = h[N−1−i] (h zero
-// past its length),
+// all k at the cost of one filter and one FFT. Writing t = n − l for the
+// absolute index of a sample and grouping the samples by t mod M,
 //
-//	y_k[j] = e^{−j2πk(n−N+1)/M} · Σ_{q<M} v[q]·e^{−j2πkq/M},
-//	v[q] = Σ_{p<K} g[q+pM]·w[q+pM],
+//	y_k[j] = Σ_{r<M} v[r]·e^{−j2πkr/M},  v[r] = Σ_{t ≡ r (mod M)} h[n−t]·x[t],
 //
 // the windowed frame time-aliased (folded) to M samples and transformed by
 // an M-point FFT — the polyphase analysis of J. O. Smith III, Spectral
 // Audio Signal Processing, W3K Publishing, 2011, sections "Polyphase
 // Analysis of Portnoff STFT" (the polyphase filters compute the
-// time-aliased windowed frame) and "Portnoff Windows"; the polyphase
-// structure of R. E. Crochiere & L. R. Rabiner, Multirate Digital Signal
-// Processing, 1983, ch. 7 (DFT filter banks, integer oversampling). With
-// n − N + 1 ≡ 0 or D (mod M) the leading factor is 1 or (−1)^k.
+// time-aliased windowed frame) and "Portnoff Windows"; the DFT filter
+// bank of R. E. Crochiere & L. R. Rabiner, Multirate Digital Signal
+// Processing, 1983, ch. 7. Folding by the absolute index (rather than by
+// the position in the window) keeps the mixers' phases on the capture's
+// clock, so no output needs a phase correction whatever D is; D need not
+// divide M, which lets the sub-band rate be one the channels' own chains
+// reach the audio rate from by integer steps.
 //
 // The prototype is a Kaiser-window low-pass (KaiserLowpass) with its
-// pass band to Pass Hz and its stop band from 2fs/M − Pass: after the
+// pass band to Pass Hz and its stop band from fs/D − Pass: after the
 // decimation by D every alias falling on |f| ≤ Pass comes from the stop
 // band and is at most δ = 10^(−AttenDB/20). Sub-band centres are fs/M
 // apart, so a Pass of at least fs/(2M) plus a channel's half-width puts
@@ -57,15 +61,16 @@ type ChanneliserSpec struct {
 // wanted sub-bands run in assembly (bank_amd64.s); the Go loops are their
 // reference.
 type Channeliser struct {
-	rate    float64
-	m, d, k int
-	n       int       // window length K·M
-	pass    float64   // Hz
-	atten   float64   // dB
-	proto   []float64 // the prototype h, odd length, symmetric
-	g       []float32 // window-order taps g[i] = h[N−1−i], zero before the prototype
-	gq      []float32 // g in the kernel's layout (bankTapsLayout)
-	fft     *bankFFT
+	rate  float64
+	m, d  int
+	n     int       // window length: rows·M − 3D ≥ len(proto)
+	rows  int       // rows of M samples covering the four windows of a batch
+	pass  float64   // Hz
+	atten float64   // dB
+	proto []float64 // the prototype h, odd length, symmetric
+	g     []float32 // window-order taps g[i] = h[N−1−i], zero before the prototype
+	gp    []float32 // g duplicated per complex lane and zero-padded by 3D before (bankFoldAVX2)
+	fft   *bankFFT
 	// Process's state
 	buf  []complex64
 	pos  int64
@@ -81,8 +86,23 @@ const (
 	bankBatch = 4
 )
 
+// NewChanneliserPlan returns the Cost of the bank NewChanneliser would
+// design for spec, without designing its prototype (its length comes from
+// Kaiser's formula, KaiserOrder, as a first estimate of the design's).
+func NewChanneliserPlan(spec ChanneliserSpec) (float64, error) {
+	c, err := newChanneliser(spec, false)
+	if err != nil {
+		return 0, err
+	}
+	return c.Cost(), nil
+}
+
 // NewChanneliser designs the bank for spec.
 func NewChanneliser(spec ChanneliserSpec) (*Channeliser, error) {
+	return newChanneliser(spec, true)
+}
+
+func newChanneliser(spec ChanneliserSpec, design bool) (*Channeliser, error) {
 	m := spec.Bands
 	if !(spec.Rate > 0) || math.IsInf(spec.Rate, 0) {
 		return nil, errors.New("modem: channeliser rate must be positive")
@@ -90,30 +110,49 @@ func NewChanneliser(spec ChanneliserSpec) (*Channeliser, error) {
 	if m < 4 || m > maxBankBands || m&(m-1) != 0 {
 		return nil, fmt.Errorf("modem: %d sub-bands: want a power of two from 4 to %d", m, maxBankBands)
 	}
+	d := spec.Decim
+	if d == 0 {
+		d = m / 2
+	}
+	if d < 2 || d > m/2 {
+		return nil, fmt.Errorf("modem: channeliser decimation %d: want 2 to %d", d, m/2)
+	}
 	atten := spec.AttenDB
 	if atten == 0 {
 		atten = DefaultRxAtten
 	}
 	spacing := spec.Rate / float64(m)
+	out := spec.Rate / float64(d)
 	pass := spec.Pass
 	if pass == 0 {
 		pass = spacing / 2
 	}
-	if !(pass > 0) || !(pass < spacing) {
-		return nil, fmt.Errorf("modem: channeliser pass band ±%g Hz does not fit sub-bands %g Hz apart", pass, spacing)
+	if !(pass > 0) || !(pass < out/2) {
+		return nil, fmt.Errorf("modem: channeliser pass band ±%g Hz does not fit the sub-band rate %g Hz", pass, out)
 	}
-	c := &Channeliser{rate: spec.Rate, m: m, d: m / 2, pass: pass, atten: atten}
-	// cutoff at the spacing: pass band to pass, stop band from 2·spacing − pass
-	c.proto = KaiserLowpass(spacing, 2*(spacing-pass), spec.Rate, atten)
-	c.k = (len(c.proto) + m - 1) / m
-	c.n = c.k * m
+	c := &Channeliser{rate: spec.Rate, m: m, d: d, pass: pass, atten: atten}
+	if !design {
+		l := KaiserOrder(out-2*pass, spec.Rate, atten) + 1
+		c.rows = (l + 3*d + m - 1) / m
+		return c, nil
+	}
+	// cutoff at half the sub-band rate: pass band to pass, stop band from
+	// out − pass
+	c.proto = KaiserLowpass(out/2, out-2*pass, spec.Rate, atten)
+	c.rows = (len(c.proto) + 3*d + m - 1) / m
+	c.n = c.rows*m - 3*d
 	c.g = make([]float32, c.n)
 	off := c.n - len(c.proto)
 	for i, h := range c.proto {
 		// h symmetric: g[off + i] = h[N−1−off−i] = h[len−1−i] = h[i]
 		c.g[off+i] = float32(h)
 	}
-	c.gq = bankTapsLayout(c.g, m)
+	// gp[2(3D + i)] = gp[2(3D + i) + 1] = g[i]: a lane j of a batch reads
+	// its tap of row p, position r at i = p·M + r − j·D, from −3D to N+3D−1
+	c.gp = make([]float32, 2*(6*d+c.n))
+	for i, v := range c.g {
+		c.gp[2*(3*d+i)], c.gp[2*(3*d+i)+1] = v, v
+	}
 	c.fft = newBankFFT(m)
 	c.Reset()
 	return c, nil
@@ -122,13 +161,13 @@ func NewChanneliser(spec ChanneliserSpec) (*Channeliser, error) {
 // Bands returns the number of sub-bands M.
 func (c *Channeliser) Bands() int { return c.m }
 
-// Decim returns the decimation D = M/2.
+// Decim returns the decimation D.
 func (c *Channeliser) Decim() int { return c.d }
 
 // Rate returns the input rate in Hz.
 func (c *Channeliser) Rate() float64 { return c.rate }
 
-// OutRate returns the sub-band rate 2fs/M in Hz.
+// OutRate returns the sub-band rate fs/D in Hz.
 func (c *Channeliser) OutRate() float64 { return c.rate / float64(c.d) }
 
 // Pass returns the half-width of the flat, alias-free band in Hz.
@@ -136,9 +175,6 @@ func (c *Channeliser) Pass() float64 { return c.pass }
 
 // Taps returns the prototype low-pass (a copy).
 func (c *Channeliser) Taps() []float64 { return append([]float64(nil), c.proto...) }
-
-// TapsPerBranch returns K, the prototype's length over M rounded up.
-func (c *Channeliser) TapsPerBranch() int { return c.k }
 
 // Delay returns the prototype's group delay in input samples, (L−1)/2:
 // output j, taken at input index (j+1)·D − 1, represents the input at
@@ -164,9 +200,17 @@ func (c *Channeliser) Nearest(freq float64) (band int, offset float64) {
 	return band, offset
 }
 
+// Cost returns the floating-point operations per input sample of the
+// bank by the usual counts: per output (every D inputs) the fold's rows·M
+// complex-by-real multiply-adds as the kernel runs them, zero taps
+// included, at 4 each, and an M-point FFT at 5·M·log₂M.
+func (c *Channeliser) Cost() float64 {
+	return (4*float64(c.rows*c.m) + 5*float64(c.m)*math.Log2(float64(c.m))) / float64(c.d)
+}
+
 // Reset clears the history and returns to input index 0.
 func (c *Channeliser) Reset() {
-	c.buf = make([]complex64, c.n-1, c.n-1+stageChunk)
+	c.buf = make([]complex64, c.n-1, c.n-1+stageChunk+3*c.d)
 	c.pos = 0
 	if c.work == nil {
 		c.work = c.newWork()
@@ -210,14 +254,12 @@ func (c *Channeliser) Process(dst [][]complex64, bands []int, src []complex64) [
 }
 
 // bankSel is a choice of sub-bands in the layout block copies them out
-// by: row i of the output matrix holds sub-band bins[i]; the rows of even
-// and odd sub-bands are listed apart, with the position of each bin in
-// the transform's output (times the four lanes), since odd sub-bands
-// change sign on every other output (the (−1)^k of the Channeliser doc).
+// by: row i of the output matrix holds sub-band bins[i], found at offs[i]
+// (the bin's position in the transform's output times the four lanes).
 type bankSel struct {
-	bins               []int
-	evenRows, evenOffs []int32
-	oddRows, oddOffs   []int32
+	bins []int
+	rows []int32
+	offs []int32
 }
 
 // selection returns the layout of the sub-bands bands. It panics if one
@@ -228,14 +270,8 @@ func (c *Channeliser) selection(bands []int) *bankSel {
 		if k < 0 || k >= c.m {
 			panic("modem: sub-band out of range")
 		}
-		off := 4 * c.fft.pos[k]
-		if k%2 == 0 {
-			s.evenRows = append(s.evenRows, int32(i))
-			s.evenOffs = append(s.evenOffs, off)
-		} else {
-			s.oddRows = append(s.oddRows, int32(i))
-			s.oddOffs = append(s.oddOffs, off)
-		}
+		s.rows = append(s.rows, int32(i))
+		s.offs = append(s.offs, 4*c.fft.pos[k])
 	}
 	return s
 }
@@ -249,19 +285,16 @@ func (c *Channeliser) newWork() *bankWork {
 	return &bankWork{vb: make([]complex64, 4*c.m)}
 }
 
-// bankSigns[s] negates the lanes whose outputs take the factor (−1)^k for
-// odd k: s = 0 the lanes 0 and 2, s = 1 the lanes 1 and 3.
-var bankSigns = [2][8]uint32{
-	{1 << 31, 1 << 31, 0, 0, 1 << 31, 1 << 31, 0, 0},
-	{0, 0, 1 << 31, 1 << 31, 0, 0, 1 << 31, 1 << 31},
-}
-
 // block is the stateless kernel of Process: win holds the inputs of
 // absolute indices a−(N−1) … a+len(win)−N (the N−1 samples before a, then
 // the block), and the outputs j whose index n = (j+1)·D − 1 lies in the
 // block are written, sub-band sel.bins[i] to out[i·stride + t] for t <
 // cnt, the count it returns (stride ≥ cnt). Blocks of a stream may run in
-// any order and on any goroutine, each with its own w.
+// any order and on any goroutine, each with its own w. Outputs are
+// computed four at a time (a batch, one per lane); when the outputs are
+// not a multiple of four the last batch runs in the kernel only if win's
+// capacity holds the samples its missing lanes would read (3·D past the
+// block; else in Go).
 func (c *Channeliser) block(out []complex64, stride int, sel *bankSel, win []complex64, a int64, w *bankWork) int {
 	d := int64(c.d)
 	nb := int64(len(win) - (c.n - 1))
@@ -275,88 +308,59 @@ func (c *Channeliser) block(out []complex64, stride int, sel *bankSel, win []com
 		panic("modem: channeliser output stride too small")
 	}
 	vb := w.vb
+	mask := int64(c.m - 1)
+	span := c.rows * c.m // samples the kernel reads for a batch
+	room := cap(win)     // past len(win): samples the kernel may read for lanes beyond the block
 	for t := 0; t < cnt; t += bankBatch {
 		lanes := min(bankBatch, cnt-t)
-		o := int(n0-a) + t*c.d // window of output t in win
-		if lanes == bankBatch && haveKernels && c.m >= 8 {
-			bankFoldAVX2(&vb[0], &win[o], &c.gq[0], c.m, c.k)
+		n := n0 + int64(t)*d
+		o := int(n - a)                       // window of output t in win
+		e := int((n - int64(c.n) + 1) & mask) // its first sample's index mod M
+		if haveKernels && c.m >= 8 && o+span <= room {
+			// lanes past the block read whatever follows it: each lane
+			// is a transform of its own, and they are not copied out
+			bankFoldAVX2(&vb[0], &win[:room][o], &c.gp[2*3*c.d], c.m, c.d, c.rows, e)
 		} else {
-			bankFoldGo(vb, win[o:], c.d, c.m, c.g, lanes)
+			bankFoldGo(vb, win[o:], c.g, c.m, c.d, e, lanes)
 		}
 		c.fft.transform(vb)
-		// (j+1) odd ⇔ window start ≡ D (mod M): sign (−1)^k. Output t has
-		// j = (n0+1)/D − 1 + t.
-		j0 := (n0+1)/d - 1 + int64(t)
-		sg := &bankSigns[j0&1]
-		bankGather(out[t:], stride, vb, sel.evenRows, sel.evenOffs, nil, lanes)
-		bankGather(out[t:], stride, vb, sel.oddRows, sel.oddOffs, sg, lanes)
+		bankGather(out[t:], stride, vb, sel.rows, sel.offs, lanes)
 	}
 	return cnt
 }
 
 // bankFoldGo is the reference loop of bankFoldAVX2 for the first lanes
-// windows (the others are cleared): lane j folds the window at
-// win[j·lane:], vb[4q + j] = Σ_{p<K} g[q+pM]·win[j·lane + q + pM].
-func bankFoldGo(vb, win []complex64, lane, m int, g []float32, lanes int) {
-	k := len(g) / m
-	for q := range m {
-		for j := range 4 {
-			var sr, si float32
-			if j < lanes {
-				w := win[j*lane+q:]
-				for p := range k {
-					h := g[q+p*m]
-					x := w[p*m]
-					sr += h * real(x)
-					si += h * imag(x)
-				}
-			}
-			vb[4*q+j] = complex(sr, si)
-		}
-	}
-}
-
-// bankTapsLayout returns the window-order taps g (K·m of them) in the
-// order bankFoldAVX2 reads them: for each group of four positions q, the
-// K taps g[q + p·m] … g[q+3 + p·m], p < K, each twice (both parts of a
-// complex sample).
-func bankTapsLayout(g []float32, m int) []float32 {
-	k := len(g) / m
-	gq := make([]float32, 0, 2*len(g))
-	for q := 0; q < m; q += 4 {
-		for p := range k {
-			for r := range 4 {
-				v := g[q+r+p*m]
-				gq = append(gq, v, v)
+// windows, window j at win[j·d:], whose first sample's absolute index is
+// ≡ e + j·d (mod m): each window's products g[i]·w[i] are summed by the
+// absolute index of their sample mod m, vb[4r + j] = Σ_{e+j·d+i ≡ r}
+// g[i]·win[j·d + i]. The other lanes are cleared.
+func bankFoldGo(vb, win []complex64, g []float32, m, d, e, lanes int) {
+	clear(vb[:4*m])
+	for j := range lanes {
+		w := win[j*d : j*d+len(g)]
+		r := (e + j*d) % m
+		for i, h := range g {
+			x := w[i]
+			v := &vb[4*r+j]
+			*v = complex(real(*v)+h*real(x), imag(*v)+h*imag(x))
+			if r++; r == m {
+				r = 0
 			}
 		}
 	}
-	return gq
 }
 
 // bankGather copies the transforms' bins at vb[offs[i] … +lanes] to
-// out[rows[i]·stride …], negating the lanes sign selects (nil: none).
-func bankGather(out []complex64, stride int, vb []complex64, rows, offs []int32, sign *[8]uint32, lanes int) {
+// out[rows[i]·stride …].
+func bankGather(out []complex64, stride int, vb []complex64, rows, offs []int32, lanes int) {
 	if len(rows) == 0 {
 		return
 	}
 	if lanes == bankBatch && haveKernels {
-		var zero [8]uint32
-		if sign == nil {
-			sign = &zero
-		}
-		bankGatherAVX2(&out[0], 8*stride, &vb[0], &rows[0], &offs[0], len(rows), sign)
+		bankGatherAVX2(&out[0], 8*stride, &vb[0], &rows[0], &offs[0], len(rows))
 		return
 	}
 	for i, r := range rows {
-		src := vb[offs[i] : offs[i]+4]
-		dst := out[int(r)*stride:]
-		for j := range lanes {
-			v := src[j]
-			if sign != nil && sign[2*j] != 0 {
-				v = -v
-			}
-			dst[j] = v
-		}
+		copy(out[int(r)*stride:int(r)*stride+lanes], vb[offs[i]:offs[i]+int32(lanes)])
 	}
 }

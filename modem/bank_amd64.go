@@ -6,12 +6,12 @@ package modem
 // bank_fft.go are the reference loops, compared on random data by
 // TestBankKernelsMatchGo.
 
-// bankFoldAVX2 is bankFoldGo for four whole windows spaced lane = m/2
-// apart, vb[4q + j] = Σ_{p<k} g[q+pm]·win[j·m/2 + q + pm] for q < m (a
-// multiple of eight), with the taps in the layout of bankTapsLayout.
+// bankFoldAVX2 is bankFoldGo for four whole windows: the taps from g0
+// (the tap g[0] of the layout gp: each tap twice, 3D zero taps before and
+// after), m a multiple of eight, the windows spanning rows·m samples.
 //
 //go:noescape
-func bankFoldAVX2(vb, win *complex64, gq *float32, m, k int)
+func bankFoldAVX2(vb, win *complex64, g0 *float32, m, d, rows, e int)
 
 // bankPassAVX2 is bankPassGo over the m four-lane elements at x, blocks
 // of length l ≥ 8, the twiddles tw interleaved as in bankFFT.
@@ -30,7 +30,7 @@ func bankLast4AVX2(x *complex64, m int)
 func bankLast2AVX2(x *complex64, m int)
 
 // bankGatherAVX2 is bankGather for four lanes: for i < n, the 32 bytes at
-// vb[offs[i]] XOR sign to out + rows[i]·stride bytes.
+// vb[offs[i]] to out + rows[i]·stride bytes.
 //
 //go:noescape
-func bankGatherAVX2(out *complex64, stride int, vb *complex64, rows, offs *int32, n int, sign *[8]uint32)
+func bankGatherAVX2(out *complex64, stride int, vb *complex64, rows, offs *int32, n int)

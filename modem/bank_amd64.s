@@ -30,33 +30,41 @@ GLOBL bankOddNeg<>(SB), RODATA|NOPTR, $32
 	VPERM2F128 $0x31, T2, T0, C \ // a2 b2 c2 d2
 	VPERM2F128 $0x31, T3, T1, D    // a3 b3 c3 d3
 
-// func bankFoldAVX2(vb, win *complex64, gq *float32, m, k int)
+// FOLDSTORE stores Y at position (e + r)·32 + OFF bytes of vb, mod m·32
+// (R14 = (e + r)·32, R13 = (m−1)·32).
+#define FOLDSTORE(Y, OFF) \
+	LEAQ    OFF(R14), AX \
+	ANDQ    R13, AX \
+	VMOVUPS Y, (DI)(AX*1)
+
+// func bankFoldAVX2(vb, win *complex64, g0 *float32, m, d, rows, e int)
 //
-// Eight positions q … q+7 (two groups of four) of the four windows at a
-// time, eight accumulators, so that the FMAs of one tap do not wait for
-// those of the last (four would leave the loop bound by the FMA
-// latency). Windows 2 and 3 start M samples after windows 0 and 1 (the
-// lane spacing is D = M/2), so window 2 at tap p reads the samples of
-// window 0 at tap p+1: each load of four samples of windows 0 and 1
-// serves two FMAs, with the taps of p and p−1 (K+1 loads of each for 4K
-// FMAs). The taps come in the order they are used (gq: per group of four
-// positions, K groups of four duplicated taps), so they stream from one
-// place and do not compete with the windows, whose rows lie M samples
-// apart, for the same cache sets. At the end each 4×4 block of complex
-// results (window j in register j) is transposed so that each
-// position's four windows are stored together.
-TEXT ·bankFoldAVX2(SB), NOSPLIT, $0-40
+// The four windows of a batch start d samples apart; together they span
+// rows·m samples, which the kernel walks row by row (m samples, one
+// branch each), eight positions (two groups of four) at a time: each
+// load of four samples feeds the FMAs of all four lanes, lane j with its
+// taps at i = p·m + r − j·d (zero outside its window, so a row where a
+// lane has no taps costs a wasted FMA but no test). Eight accumulators,
+// so that the FMAs of one row do not wait for those of the last. At the
+// end each 4×4 block of complex results (lane j in register j) is
+// transposed and each position's four lanes are stored together at
+// position (e + r) mod m: the sum by absolute index mod m.
+TEXT ·bankFoldAVX2(SB), NOSPLIT, $0-56
 	MOVQ vb+0(FP), DI
 	MOVQ win+8(FP), SI
-	MOVQ gq+16(FP), R8
+	MOVQ g0+16(FP), R8
 	MOVQ m+24(FP), R9
-	SHLQ $3, R9 // bytes from one branch to the next
-	MOVQ k+32(FP), CX
-	MOVQ R9, DX
-	SHRQ $1, DX // lane spacing D in bytes
-	MOVQ CX, R12
-	SHLQ $5, R12 // bytes of one group's taps
-	XORQ BX, BX
+	MOVQ R9, R13
+	DECQ R13
+	SHLQ $5, R13 // (m−1)·32: position mask in vb bytes
+	SHLQ $3, R9  // row stride in bytes
+	MOVQ d+32(FP), DX
+	SHLQ $3, DX
+	NEGQ DX      // −d·8: from one lane's taps to the next's
+	MOVQ rows+40(FP), CX
+	MOVQ e+48(FP), R12
+	SHLQ $5, R12 // e·32
+	XORQ BX, BX  // position r, in bytes of samples
 
 fold:
 	CMPQ   BX, R9
@@ -69,53 +77,41 @@ fold:
 	VXORPS Y5, Y5, Y5
 	VXORPS Y6, Y6, Y6
 	VXORPS Y7, Y7, Y7
-	VXORPS Y10, Y10, Y10 // taps of p−1, first group
-	VXORPS Y11, Y11, Y11 // and second
-	LEAQ   (SI)(BX*1), AX
-	LEAQ   (AX)(DX*1), R11
-	MOVQ   CX, R10
+	LEAQ   (SI)(BX*1), AX   // samples
+	LEAQ   (R8)(BX*1), R10  // taps of lane 0 (lane 1 at +DX)
+	LEAQ   (R10)(DX*2), R11 // taps of lane 2 (lane 3 at +DX)
+	MOVQ   CX, R14
 
-foldtap:
-	VMOVUPS     (R8), Y8
-	VMOVUPS     (R8)(R12*1), Y9
-	VMOVUPS     (AX), Y12
-	VMOVUPS     (R11), Y13
-	VFMADD231PS Y12, Y8, Y0
-	VFMADD231PS Y13, Y8, Y1
-	VFMADD231PS Y12, Y10, Y2
-	VFMADD231PS Y13, Y10, Y3
-	VMOVUPS     32(AX), Y12
-	VMOVUPS     32(R11), Y13
-	VFMADD231PS Y12, Y9, Y4
-	VFMADD231PS Y13, Y9, Y5
-	VFMADD231PS Y12, Y11, Y6
-	VFMADD231PS Y13, Y11, Y7
-	VMOVAPS     Y8, Y10
-	VMOVAPS     Y9, Y11
-	ADDQ        $32, R8
+foldrow:
+	VMOVUPS     (AX), Y8
+	VMOVUPS     32(AX), Y9
+	VFMADD231PS (R10), Y8, Y0
+	VFMADD231PS 32(R10), Y9, Y4
+	VFMADD231PS (R10)(DX*1), Y8, Y1
+	VFMADD231PS 32(R10)(DX*1), Y9, Y5
+	VFMADD231PS (R11), Y8, Y2
+	VFMADD231PS 32(R11), Y9, Y6
+	VFMADD231PS (R11)(DX*1), Y8, Y3
+	VFMADD231PS 32(R11)(DX*1), Y9, Y7
 	ADDQ        R9, AX
+	ADDQ        R9, R10
 	ADDQ        R9, R11
-	DECQ        R10
-	JNZ         foldtap
-	VFMADD231PS (AX), Y10, Y2
-	VFMADD231PS (R11), Y10, Y3
-	VFMADD231PS 32(AX), Y11, Y6
-	VFMADD231PS 32(R11), Y11, Y7
-	ADDQ        R12, R8 // past the second group's taps
+	DECQ        R14
+	JNZ         foldrow
 
-	TRANS4(Y0, Y1, Y2, Y3, Y8, Y9, Y12, Y13)
-	TRANS4(Y4, Y5, Y6, Y7, Y8, Y9, Y12, Y13)
-	LEAQ    (DI)(BX*4), AX
-	VMOVUPS Y0, (AX)
-	VMOVUPS Y1, 32(AX)
-	VMOVUPS Y2, 64(AX)
-	VMOVUPS Y3, 96(AX)
-	VMOVUPS Y4, 128(AX)
-	VMOVUPS Y5, 160(AX)
-	VMOVUPS Y6, 192(AX)
-	VMOVUPS Y7, 224(AX)
-	ADDQ    $64, BX
-	JMP     fold
+	TRANS4(Y0, Y1, Y2, Y3, Y8, Y9, Y10, Y11)
+	TRANS4(Y4, Y5, Y6, Y7, Y8, Y9, Y10, Y11)
+	LEAQ (R12)(BX*4), R14 // (e + r)·32
+	FOLDSTORE(Y0, 0)
+	FOLDSTORE(Y1, 32)
+	FOLDSTORE(Y2, 64)
+	FOLDSTORE(Y3, 96)
+	FOLDSTORE(Y4, 128)
+	FOLDSTORE(Y5, 160)
+	FOLDSTORE(Y6, 192)
+	FOLDSTORE(Y7, 224)
+	ADDQ $64, BX
+	JMP  fold
 
 folddone:
 	VZEROUPPER
@@ -242,23 +238,20 @@ l2done:
 	VZEROUPPER
 	RET
 
-// func bankGatherAVX2(out *complex64, stride int, vb *complex64, rows, offs *int32, n int, sign *[8]uint32)
-TEXT ·bankGatherAVX2(SB), NOSPLIT, $0-56
-	MOVQ    out+0(FP), DI
-	MOVQ    stride+8(FP), DX
-	MOVQ    vb+16(FP), SI
-	MOVQ    rows+24(FP), R8
-	MOVQ    offs+32(FP), R9
-	MOVQ    n+40(FP), CX
-	MOVQ    sign+48(FP), R10
-	VMOVDQU (R10), Y1
+// func bankGatherAVX2(out *complex64, stride int, vb *complex64, rows, offs *int32, n int)
+TEXT ·bankGatherAVX2(SB), NOSPLIT, $0-48
+	MOVQ out+0(FP), DI
+	MOVQ stride+8(FP), DX
+	MOVQ vb+16(FP), SI
+	MOVQ rows+24(FP), R8
+	MOVQ offs+32(FP), R9
+	MOVQ n+40(FP), CX
 
 gather:
 	MOVLQSX (R8), AX
 	IMULQ   DX, AX
 	MOVLQSX (R9), BX
 	VMOVUPS (SI)(BX*8), Y0
-	VXORPS  Y1, Y0, Y0
 	VMOVUPS Y0, (DI)(AX*1)
 	ADDQ    $4, R8
 	ADDQ    $4, R9

@@ -38,8 +38,9 @@ func BenchmarkBankFFT(b *testing.B) {
 func BenchmarkChanneliser(b *testing.B) {
 	const n = 1 << 16
 	x := gaussNoise(n, 1, 1)
-	for _, m := range []int{32, 64, 128, 256, 512} {
-		c, err := NewChanneliser(ChanneliserSpec{Rate: 2.4e6, Bands: m, Pass: 2.4e6/float64(2*m) + 1425})
+	for _, tc := range []struct{ m, d int }{{32, 16}, {64, 32}, {128, 50}, {128, 64}, {256, 100}, {256, 128}, {512, 200}} {
+		m := tc.m
+		c, err := NewChanneliser(ChanneliserSpec{Rate: 2.4e6, Bands: m, Decim: tc.d, Pass: 2.4e6/float64(2*m) + 1425})
 		if err != nil {
 			b.Fatal(err)
 		}
@@ -47,7 +48,7 @@ func BenchmarkChanneliser(b *testing.B) {
 		for i := range bands {
 			bands[i] = (i * 7) % m
 		}
-		b.Run(fmt.Sprintf("M=%d/K=%d", m, c.k), func(b *testing.B) {
+		b.Run(fmt.Sprintf("M=%d/D=%d/rows=%d", m, c.d, c.rows), func(b *testing.B) {
 			b.SetBytes(8 * n)
 			dst := c.Process(nil, bands, x)
 			for b.Loop() {
@@ -57,25 +58,23 @@ func BenchmarkChanneliser(b *testing.B) {
 	}
 }
 
-// BenchmarkBankFold times the fold of four windows (M = 256, K = 8).
+// BenchmarkBankFold times the fold of four windows (M = 256, D = 100).
 func BenchmarkBankFold(b *testing.B) {
-	const m, k = 256, 8
-	g := make([]float32, k*m)
-	for i := range g {
-		g[i] = float32(i%7) - 3
+	c, err := NewChanneliser(ChanneliserSpec{Rate: 2.4e6, Bands: 256, Decim: 100, Pass: 2.4e6/512 + 1425})
+	if err != nil {
+		b.Fatal(err)
 	}
-	win := gaussNoise(k*m+3*m/2, 1, 1)
-	vb := make([]complex64, 4*m)
+	win := gaussNoise(c.rows*c.m, 1, 1)
+	vb := make([]complex64, 4*c.m)
 	b.Run("go", func(b *testing.B) {
 		for b.Loop() {
-			bankFoldGo(vb, win, m/2, m, g, 4)
+			bankFoldGo(vb, win, c.g, c.m, c.d, 3, 4)
 		}
 	})
 	if haveKernels {
-		gq := bankTapsLayout(g, m)
 		b.Run("avx2", func(b *testing.B) {
 			for b.Loop() {
-				bankFoldAVX2(&vb[0], &win[0], &gq[0], m, k)
+				bankFoldAVX2(&vb[0], &win[0], &c.gp[2*3*c.d], c.m, c.d, c.rows, 3)
 			}
 		})
 	}

@@ -23,7 +23,7 @@ func ExampleChanneliser() {
 		fmt.Println(err)
 		return
 	}
-	fmt.Printf("%d sub-bands at %.0f Hz, %d taps a branch\n", c.Bands(), c.OutRate(), c.TapsPerBranch())
+	fmt.Printf("%d sub-bands at %.0f Hz, prototype of %d taps\n", c.Bands(), c.OutRate(), len(c.Taps()))
 	var bands []int
 	var offs []float64
 	for _, f := range []float64{121e3, -300.5e3} {
@@ -38,7 +38,7 @@ func ExampleChanneliser() {
 		fmt.Printf("sub-band %d (%+.0f Hz): tone at %+.1f Hz (%+.1f), |y| = %.4f\n", k, c.Centre(k), f, offs[i], cmplx.Abs(last))
 	}
 	// Output:
-	// 256 sub-bands at 18750 Hz, 6 taps a branch
+	// 256 sub-bands at 18750 Hz, prototype of 1341 taps
 	// sub-band 13 (+121875 Hz): tone at -875.0 Hz (-875.0), |y| = 0.5000
 	// sub-band 224 (-300000 Hz): tone at -500.0 Hz (-500.0), |y| = 0.2500
 }

@@ -48,8 +48,7 @@ func TestBankFFT(t *testing.T) {
 // bankDirect computes the Channeliser's defining sum in float64:
 // y_k[j] = Σ_l h[l]·x[n−l]·e^{−j2πk(n−l)/M}, n = (j+1)·D − 1, x zero
 // before index 0.
-func bankDirect(h []float64, m int, x []complex64, k, j int) complex128 {
-	d := m / 2
+func bankDirect(h []float64, m, d int, x []complex64, k, j int) complex128 {
 	n := (j+1)*d - 1
 	var s complex128
 	for l, v := range h {
@@ -68,8 +67,9 @@ func TestChanneliserDefinition(t *testing.T) {
 	// Processing, 2011, "Polyphase Analysis of Portnoff STFT"), computed
 	// directly in float64. Tolerance: float32 rounding of K·M products
 	// and the FFT, 2e-6 of the input's RMS per √(K·M) (common practice).
-	for _, m := range []int{8, 16, 64} {
-		c, err := NewChanneliser(ChanneliserSpec{Rate: 48000, Bands: m})
+	for _, tc := range []struct{ m, d int }{{8, 4}, {16, 8}, {64, 32}, {16, 5}, {64, 25}, {32, 2}} {
+		m := tc.m
+		c, err := NewChanneliser(ChanneliserSpec{Rate: 48000, Bands: m, Decim: tc.d})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -85,7 +85,7 @@ func TestChanneliserDefinition(t *testing.T) {
 				t.Fatalf("M=%d band %d: %d outputs, want %d", m, k, len(got[k]), len(x)/c.d)
 			}
 			for j, v := range got[k] {
-				want := bankDirect(c.proto, m, x, k, j)
+				want := bankDirect(c.proto, m, c.d, x, k, j)
 				if e := cmplx.Abs(complex128(v) - want); e > tol {
 					t.Fatalf("M=%d band %d output %d: %v, want %v (error %.3g > %.3g)", m, k, j, v, want, e, tol)
 				}
@@ -149,7 +149,7 @@ func TestChanneliserAliasing(t *testing.T) {
 	const tol = 1e-6
 	out := c.OutRate()
 	stop := out - pass
-	t.Logf("M=%d, K=%d (%d taps), sub-band rate %g Hz, pass ±%.0f Hz, stop from %.0f Hz", m, c.k, len(c.proto), out, pass, stop)
+	t.Logf("M=%d, D=%d, %d taps, sub-band rate %g Hz, pass ±%.0f Hz, stop from %.0f Hz", m, c.d, len(c.proto), out, pass, stop)
 	const n = 1 << 17
 	worstPass, worstAlias := 0.0, 0.0
 	for _, tc := range []struct {
@@ -164,7 +164,7 @@ func TestChanneliserAliasing(t *testing.T) {
 		fc := c.Centre(tc.band)
 		x := complexTone(n, 1, fc+tc.f, rate)
 		y := c.Process(nil, []int{tc.band}, x)[0]
-		y = y[4*c.k:] // past the start-up
+		y = y[len(c.proto)/c.d+1:] // past the start-up
 		alias := tc.f - out*math.Round(tc.f/out)
 		got := toneLevel(y, alias, out)
 		want := cmplx.Abs(FreqResponse(c.proto, tc.f, rate))
@@ -231,21 +231,24 @@ func TestBankKernelsMatchGo(t *testing.T) {
 		return x
 	}
 	for _, m := range []int{8, 16, 64, 256, 512} {
-		for _, k := range []int{1, 3, 8} {
-			g := make([]float32, k*m)
-			for i := range g {
-				g[i] = float32(r.NormFloat64())
+		for _, d := range []int{m / 2, m/2 - 3, m / 4, 2} {
+			if d < 2 {
+				continue
 			}
-			gq := bankTapsLayout(g, m)
-			lane := m / 2
-			win := rnd(k*m + 3*lane)
-			want := make([]complex64, 4*m)
-			got := make([]complex64, 4*m)
-			bankFoldGo(want, win, lane, m, g, 4)
-			bankFoldAVX2(&got[0], &win[0], &gq[0], m, k)
-			for i := range got {
-				if e := cmplx.Abs(complex128(got[i] - want[i])); e > tol*math.Sqrt(float64(k)) {
-					t.Fatalf("fold M=%d K=%d: element %d = %v, want %v", m, k, i, got[i], want[i])
+			c, err := NewChanneliser(ChanneliserSpec{Rate: 1e6, Bands: m, Decim: d})
+			if err != nil {
+				t.Fatal(err)
+			}
+			win := rnd(c.rows * m)
+			for _, e := range []int{0, 1, 5, m - 1} {
+				want := make([]complex64, 4*m)
+				got := make([]complex64, 4*m)
+				bankFoldGo(want, win, c.g, m, d, e, 4)
+				bankFoldAVX2(&got[0], &win[0], &c.gp[2*3*d], m, d, c.rows, e)
+				for i := range got {
+					if e := cmplx.Abs(complex128(got[i] - want[i])); e > tol*math.Sqrt(float64(c.n)) {
+						t.Fatalf("fold M=%d D=%d: element %d = %v, want %v", m, d, i, got[i], want[i])
+					}
 				}
 			}
 		}
@@ -272,16 +275,14 @@ func TestBankKernelsMatchGo(t *testing.T) {
 		}
 		rows := []int32{2, 0, 1}
 		offs := []int32{4 * 3, 0, 4 * int32(m-1)}
-		for _, sg := range []*[8]uint32{nil, &bankSigns[0], &bankSigns[1]} {
-			a := make([]complex64, 3*10)
-			b := make([]complex64, 3*10)
-			bankGather(a, 10, x, rows, offs, sg, 3) // three lanes: the Go loop
-			bankGather(b, 10, x, rows, offs, sg, 4) // four lanes: the kernel
-			for i := range 3 {
-				for j := range 3 {
-					if a[10*i+j] != b[10*i+j] {
-						t.Fatalf("gather: row %d lane %d = %v, want %v", i, j, b[10*i+j], a[10*i+j])
-					}
+		a := make([]complex64, 3*10)
+		b := make([]complex64, 3*10)
+		bankGather(a, 10, x, rows, offs, 3) // three lanes: the Go loop
+		bankGather(b, 10, x, rows, offs, 4) // four lanes: the kernel
+		for i := range 3 {
+			for j := range 3 {
+				if a[10*i+j] != b[10*i+j] {
+					t.Fatalf("gather: row %d lane %d = %v, want %v", i, j, b[10*i+j], a[10*i+j])
 				}
 			}
 		}

@@ -46,10 +46,10 @@ func bankLast2AVX2(x *complex64, m int) {
 	panic("modem: no assembly kernels in this build")
 }
 
-func bankFoldAVX2(vb, win *complex64, gq *float32, m, k int) {
+func bankFoldAVX2(vb, win *complex64, g0 *float32, m, d, rows, e int) {
 	panic("modem: no assembly kernels in this build")
 }
 
-func bankGatherAVX2(out *complex64, stride int, vb *complex64, rows, offs *int32, n int, sign *[8]uint32) {
+func bankGatherAVX2(out *complex64, stride int, vb *complex64, rows, offs *int32, n int) {
 	panic("modem: no assembly kernels in this build")
 }

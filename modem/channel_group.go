@@ -75,7 +75,7 @@ func (g *shiftGroup) block(outs [][]complex64, win []complex64, a int64) {
 	var q [8]float64
 	if len(g.sds) == 2 {
 		for c, s := range g.sds {
-			p := phasor(uint64(n)*s.step) * s.post
+			p := phasor(s.base+uint64(n)*s.step) * s.post
 			p1 := p * s.rot
 			q[4*c], q[4*c+1], q[4*c+2], q[4*c+3] = real(p), imag(p), real(p1), imag(p1)
 		}
@@ -84,7 +84,7 @@ func (g *shiftGroup) block(outs [][]complex64, win []complex64, a int64) {
 		return
 	}
 	for c, s := range g.sds {
-		p := phasor(uint64(n)*s.step) * s.post
+		p := phasor(s.base+uint64(n)*s.step) * s.post
 		b := 4*(c%2) + 2*(c/2) // (q₀, q₂) then (q₁, q₃)
 		q[b], q[b+1] = real(p), imag(p)
 	}

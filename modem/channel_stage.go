@@ -40,6 +40,7 @@ type ShiftDecimator struct {
 	l, d   int
 	phase  int    // output at input indices m·d + phase
 	step   uint64 // −freq/rate in 2⁻⁶⁴ cycles per sample
+	base   uint64 // phase of the mixer at input index 0 (0 but after a Channeliser)
 	rot    complex128
 	buf    []complex64 // history (l−1) then the current chunk
 	pos    int64       // absolute index of the next input sample
@@ -184,7 +185,7 @@ func grow(dst []complex64, cnt int) []complex64 {
 func (s *ShiftDecimator) blockSymKernel(dst, w []complex64, n int64, cnt int) []complex64 {
 	k := len(dst)
 	dst = grow(dst, cnt)
-	p := phasor(uint64(n)*s.step) * s.post
+	p := phasor(s.base+uint64(n)*s.step) * s.post
 	s.st.dotRotate(dst[k:k+cnt], w, s.d, p, s.rot)
 	return dst[:k+cnt]
 }
@@ -198,7 +199,7 @@ func (s *ShiftDecimator) blockDot(dst, w []complex64, n int64, cnt int) []comple
 	k := len(dst)
 	dst = grow(dst, cnt)
 	out := dst[k : k+cnt]
-	p := phasor(uint64(n) * s.step)
+	p := phasor(s.base + uint64(n)*s.step)
 	if s.kt != nil {
 		s.kt.dotRotate(out, w, s.d, p, s.rot)
 	} else {
@@ -231,7 +232,7 @@ func rotate(out []complex64, p, r complex128) {
 // common factor e^{jωc} joins the output rotation.
 func (s *ShiftDecimator) blockSym(dst, win []complex64, n int64, cnt int) []complex64 {
 	l := s.l
-	p := phasor(uint64(n)*s.step) * s.post
+	p := phasor(s.base+uint64(n)*s.step) * s.post
 	pr, pi := real(p), imag(p)
 	rr, ri := real(s.rot), imag(s.rot)
 	pa, pb := s.pa, s.pb[:len(s.pa)]

@@ -88,11 +88,29 @@ func KaiserLowpass(cutoff, transition, rate, attenDB float64) []float64 {
 // (cycles per sample) meeting attenDB in both bands, as KaiserLowpass
 // describes.
 func kaiserMeet(fc, tw, attenDB float64) []float64 {
-	k := kaiserKey{fc, tw, attenDB}
+	return kaiserMeetShift(fc, tw, attenDB, 0)
+}
+
+// kaiserMeetShift is kaiserMeet with the impulse response (the sinc and
+// its window) delayed by shift samples, |shift| ≤ 1, beyond the centre
+// of its taps: a fractional delay that a receive chain fed by a
+// Channeliser uses to put its audio on the capture's time grid. A
+// shifted design has two taps more than the unshifted one whatever the
+// shift (room for the moved window), so that the chain can plan with its
+// length before it knows the shift; with shift 0 it is the unshifted
+// design itself.
+func kaiserMeetShift(fc, tw, attenDB, shift float64) []float64 {
+	k := kaiserKey{fc, tw, attenDB, shift}
 	if h, ok := kaiserCache.Load(k); ok {
 		return slices.Clone(h.([]float64))
 	}
-	h := kaiserDesign(fc, tw, attenDB)
+	var h []float64
+	if shift == 0 {
+		h = kaiserDesign(fc, tw, attenDB)
+	} else {
+		m := len(kaiserMeetShift(fc, tw, attenDB, 0)) + 1
+		h = kaiserFixed(m, fc, tw, attenDB, shift)
+	}
 	if kaiserCached.Add(1) <= kaiserCacheMax {
 		kaiserCache.Store(k, slices.Clone(h))
 	}
@@ -110,15 +128,29 @@ var (
 
 const kaiserCacheMax = 256
 
-type kaiserKey struct{ fc, tw, atten float64 }
+type kaiserKey struct{ fc, tw, atten, shift float64 }
 
 // kaiserDesign is kaiserMeet without the cache.
 func kaiserDesign(fc, tw, attenDB float64) []float64 {
 	delta := math.Pow(10, -attenDB/20)
 	var h []float64
 	for a, i := attenDB, 0; i < 40; a, i = a+0.25, i+1 {
-		h = windowedSinc(KaiserOrder(tw, 1, a), fc, KaiserBeta(a))
+		h = windowedSinc(KaiserOrder(tw, 1, a), fc, KaiserBeta(a), 0)
 		// 5 % margin for the peaks between grid points
+		if edgeError(h, fc-tw/2, fc+tw/2) <= 0.95*delta {
+			break
+		}
+	}
+	return h
+}
+
+// kaiserFixed is kaiserDesign for a fixed order m and a shifted response:
+// only the window's β rises until both bands meet attenDB.
+func kaiserFixed(m int, fc, tw, attenDB, shift float64) []float64 {
+	delta := math.Pow(10, -attenDB/20)
+	var h []float64
+	for a, i := attenDB, 0; i < 40; a, i = a+0.25, i+1 {
+		h = windowedSinc(m, fc, KaiserBeta(a), shift)
 		if edgeError(h, fc-tw/2, fc+tw/2) <= 0.95*delta {
 			break
 		}
@@ -145,13 +177,28 @@ func edgeError(h []float64, pass, stop float64) float64 {
 }
 
 // windowedSinc returns the M+1 taps of a Kaiser-windowed ideal low-pass
-// with cutoff fc cycles per sample, normalised to unity DC gain.
-func windowedSinc(m int, fc, beta float64) []float64 {
-	w := KaiserWindow(m+1, beta)
+// with cutoff fc cycles per sample, normalised to unity DC gain, its
+// centre shift samples after M/2 (the window moved with the sinc: the
+// window w(t) = I₀(β·√(1 − (2t/M)²))/I₀(β) at t = k − M/2 − shift, zero
+// for |t| > M/2).
+func windowedSinc(m int, fc, beta, shift float64) []float64 {
+	var w []float64
+	if shift == 0 {
+		w = KaiserWindow(m+1, beta)
+	} else {
+		w = make([]float64, m+1)
+		i0b := besselI0(beta)
+		for k := range w {
+			r := (float64(k) - float64(m)/2 - shift) / (float64(m) / 2)
+			if math.Abs(r) <= 1 {
+				w[k] = besselI0(beta*math.Sqrt(1-r*r)) / i0b
+			}
+		}
+	}
 	h := make([]float64, m+1)
 	var sum float64
 	for k := range h {
-		t := float64(k) - float64(m)/2
+		t := float64(k) - float64(m)/2 - shift
 		h[k] = 2 * fc * sinc(2*fc*t) * w[k]
 		sum += h[k]
 	}
@@ -159,6 +206,13 @@ func windowedSinc(m int, fc, beta float64) []float64 {
 		h[k] /= sum
 	}
 	return h
+}
+
+// besselI0 returns I₀(x), read off hilbert.Kaiser, whose two-point window
+// is 1/I₀(β) at its ends (I₀(0) = 1): the series lives in package hilbert
+// for the phase-splitter designs, and one copy serves both packages.
+func besselI0(x float64) float64 {
+	return 1 / hilbert.Kaiser([]float64{1, 1}, x)[0]
 }
 
 // KaiserBandpass designs a linear-phase band-pass FIR with −6 dB points at

@@ -48,7 +48,7 @@ func TestKaiserGolden(t *testing.T) {
 			t.Errorf("A=%g tw=%g: %d taps, scipy %d → %d", c.AttenDB, c.Transition, n, c.ScipyNumtaps, want)
 		}
 		// The formula design, before KaiserLowpass's check and tightening.
-		h := windowedSinc(KaiserOrder(c.Transition, c.Rate, c.AttenDB), c.Cutoff/c.Rate, KaiserBeta(c.AttenDB))
+		h := windowedSinc(KaiserOrder(c.Transition, c.Rate, c.AttenDB), c.Cutoff/c.Rate, KaiserBeta(c.AttenDB), 0)
 		if len(h) != len(c.Taps) {
 			t.Errorf("length %d, golden %d", len(h), len(c.Taps))
 			continue

@@ -180,18 +180,37 @@ func NewChannel(cfg RxConfig) (*Channel, error) {
 	if err != nil {
 		return nil, err
 	}
+	return buildChannel(cfg, chainInput{rate: cfg.Rate, offset: cfg.Offset})
+}
+
+// chainInput is what a Channel's chain reads: the capture itself, or one
+// sub-band of a Channeliser.
+type chainInput struct {
+	rate   float64 // Hz
+	offset float64 // the carrier relative to the input's centre, Hz
+	// lag is the time (s) by which input sample j lags j/rate on the
+	// capture's clock (a Channeliser's delay beyond its output grid).
+	lag float64
+	// fine puts the chain's delay on the audio grid exactly by a
+	// fractional delay of the channel filter; without it the delay is
+	// right to half an input sample, which for a capture is exact enough.
+	fine bool
+}
+
+// buildChannel builds the chain of cfg (defaults filled) reading in.
+func buildChannel(cfg RxConfig, in chainInput) (*Channel, error) {
 	shift, half, trans := cfg.channelShape()
 	protect := half + trans/2
-	plan, err := PlanChannel(cfg.Rate, cfg.AudioRate, 4*protect, protect, cfg.AttenDB)
+	plan, err := PlanChannel(in.rate, cfg.AudioRate, 4*protect, protect, cfg.AttenDB)
 	if err != nil {
 		return nil, err
 	}
 	c := &Channel{cfg: cfg, plan: plan}
-	fs, fw, fa := cfg.Rate, plan.WorkRate, cfg.AudioRate
+	fs, fw, fa := in.rate, plan.WorkRate, cfg.AudioRate
 
 	// Delays with every decimator phase 0, in seconds.
 	first := combTaps(plan.First.Decim, plan.First.Order)
-	t := -float64(len(first)-1) / 2 / fs
+	t := -in.lag - float64(len(first)-1)/2/fs
 	rate := fs / float64(plan.First.Decim)
 	var stageTaps [][]float64
 	for _, d := range plan.Stages {
@@ -200,22 +219,37 @@ func NewChannel(cfg RxConfig) (*Channel, error) {
 		t -= float64(len(h)-1) / 2 / rate
 		rate /= float64(d)
 	}
+	// With fine, the rest of the delay (within half an input sample) is
+	// a fractional delay of the interpolator to the audio rate, or of the
+	// channel filter when there is none (kaiserMeetShift: two taps more
+	// than the plain design, whatever the shift).
+	fineInterp := false
 	filt := KaiserLowpass(half, trans, fw, cfg.AttenDB)
-	t -= float64(len(filt)-1) / 2 / fw
+	filtLen := len(filt)
 	up := fa / fw
-	if math.Abs(up-1) < 1e-9 {
+	var ih []float64
+	switch {
+	case math.Abs(up-1) < 1e-9:
 		// The work rate is the audio rate: no rate converter.
-	} else if math.Abs(up-math.Round(up)) < 1e-9 {
-		ih := KaiserLowpass(fw/2, fw-2*protect, fa, cfg.AttenDB)
-		c.interp = NewInterpolator(ih, int(math.Round(up)))
-		t -= c.interp.Delay() / fa
-	} else {
+	case math.Abs(up-math.Round(up)) < 1e-9:
+		ih = KaiserLowpass(fw/2, fw-2*protect, fa, cfg.AttenDB)
+		ihLen := len(ih)
+		if in.fine {
+			fineInterp = true
+			ihLen += 2
+		}
+		t -= float64(ihLen-1) / 2 / fa
+	default:
 		c.rs, err = NewResamplerSpec(ResamplerSpec{InRate: fw, OutRate: fa, Pass: protect, AttenDB: cfg.AttenDB})
 		if err != nil {
 			return nil, err
 		}
 		t -= c.rs.Delay() / fa
 	}
+	if in.fine && !fineInterp {
+		filtLen += 2
+	}
+	t -= float64(filtLen-1) / 2 / fw
 	// Choose the phases: advance the sampling grid by s input samples,
 	// s < Decim, so that the total delay is a whole number of audio samples.
 	k := math.Floor(-t*fa + 1e-9)
@@ -223,10 +257,32 @@ func NewChannel(cfg RxConfig) (*Channel, error) {
 	s = max(0, min(s, plan.Decim-1))
 	t += float64(s) / fs
 	c.delay = int(math.Round(-t * fa))
-	ph := s % plan.First.Decim
-	s /= plan.First.Decim
-	c.first = NewShiftDecimator(first, plan.First.Decim, ph, cfg.Offset+shift, fs)
-	for i, d := range plan.Stages {
+	// the rest, positive for a later response
+	rest := float64(c.delay)/fa + t
+	switch {
+	case fineInterp:
+		ih = kaiserMeetShift(0.5*fw/fa, (fw-2*protect)/fa, cfg.AttenDB, rest*fa)
+	case in.fine:
+		filt = kaiserMeetShift(half/fw, trans/fw, cfg.AttenDB, rest*fw)
+	}
+	if ih != nil {
+		c.interp = NewInterpolator(ih, int(math.Round(up)))
+	}
+	// After a Channeliser a first stage that would only mix (the plan's
+	// comb of one tap) takes the first Kaiser stage's taps instead: the
+	// same filtering, with the mixer folded into it.
+	stages, d1 := plan.Stages, plan.First.Decim
+	if in.fine && d1 == 1 && len(stages) > 0 {
+		first, d1 = stageTaps[0], stages[0]
+		stages, stageTaps = stages[1:], stageTaps[1:]
+	}
+	ph := s % d1
+	s /= d1
+	c.first = NewShiftDecimator(first, d1, ph, in.offset+shift, fs)
+	// Input sample j stands for time j/fs − lag: the mixer's phase
+	// follows the capture's clock, as a mixer on the capture would.
+	c.first.base = phaseStep((in.offset + shift) * in.lag)
+	for i, d := range stages {
 		c.stages = append(c.stages, NewDecimator(stageTaps[i], d, s%d))
 		s /= d
 	}

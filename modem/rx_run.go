@@ -25,6 +25,9 @@ type SampleReader interface {
 // the blocks in flight, whatever the capture's length.
 type Receiver struct {
 	chans []*Channel
+	bank  *Channeliser // nil: per-channel first stages
+	bands []int        // with bank: the sub-band of each channel
+	sel   *bankSel
 	// Workers is the number of first-stage goroutines; 0 means
 	// runtime.GOMAXPROCS(0).
 	Workers int
@@ -35,14 +38,46 @@ type Receiver struct {
 	Progress func(n int)
 }
 
-// NewReceiver returns a receiver for the channels cfgs.
+// NewReceiver returns a receiver for the channels cfgs, its front end
+// chosen by the planner rule (NewReceiverFront with FrontAuto).
 func NewReceiver(cfgs []RxConfig) (*Receiver, error) {
+	return NewReceiverFront(cfgs, FrontAuto)
+}
+
+// NewReceiverFront returns a receiver for the channels cfgs with the
+// given front end. FrontAuto uses a Channeliser when there are at least
+// eight channels (bankMinChannels, the measured break-even) of one
+// capture rate and rejection and a bank of at least 16 sub-bands fits
+// the widest of them (planBank); otherwise every channel has its own
+// first stage. FrontChanneliser reports an error when no bank fits.
+func NewReceiverFront(cfgs []RxConfig, front FrontEnd) (*Receiver, error) {
 	if len(cfgs) == 0 {
 		return nil, errors.New("no channel to decode")
 	}
+	full := make([]RxConfig, len(cfgs))
+	for i, cfg := range cfgs {
+		c, err := cfg.withDefaults()
+		if err != nil {
+			return nil, err
+		}
+		full[i] = c
+	}
 	r := &Receiver{}
-	for _, cfg := range cfgs {
-		c, err := NewChannel(cfg)
+	bp, ok := planBank(full)
+	useBank := front == FrontChanneliser || (front == FrontAuto && ok && len(cfgs) >= bankMinChannels)
+	if useBank {
+		if !ok {
+			return nil, errors.New("modem: no channeliser fits these channels (rates, rejections or widths differ, or the capture is too narrow)")
+		}
+		var err error
+		if r.bank, r.bands, r.chans, err = bankChains(full, bp); err != nil {
+			return nil, err
+		}
+		r.sel = r.bank.selection(r.bands)
+		return r, nil
+	}
+	for _, cfg := range full {
+		c, err := buildChannel(cfg, chainInput{rate: cfg.Rate, offset: cfg.Offset})
 		if err != nil {
 			return nil, err
 		}
@@ -63,7 +98,8 @@ type rxJob struct {
 	to    int
 	a     int64
 	n     int
-	outs  [][]complex64 // first-stage outputs per channel
+	outs  [][]complex64 // first-stage (or sub-band) outputs per channel
+	mat   []complex64   // with a Channeliser: the sub-band outputs, channel i from mat[i·stride]
 	done  chan struct{}
 	refs  atomic.Int32
 	last  bool  // the block after which no samples follow
@@ -100,6 +136,17 @@ func (r *Receiver) run(src SampleReader, raw io.Reader, ss int, decode func([]co
 		workers = runtime.GOMAXPROCS(0)
 	}
 	block := r.Block
+	chunk := rawChunk // samples a worker decodes at a time
+	pad := 0          // room after a window that the Channeliser's kernel may read
+	if r.bank != nil {
+		// whole batches of four outputs per chunk and block
+		b := 4 * r.bank.Decim()
+		chunk = b * max(1, rawChunk/b)
+		if block <= 0 {
+			block = chunk * max(1, (1<<16)/chunk)
+		}
+		pad = 3 * r.bank.Decim()
+	}
 	if block <= 0 {
 		block = 1 << 16
 	}
@@ -107,8 +154,12 @@ func (r *Receiver) run(src SampleReader, raw io.Reader, ss int, decode func([]co
 	var flushIn int64 // capture samples of zeros that push the delayed tail out
 	for _, c := range r.chans {
 		hist = max(hist, c.first.l-1)
-		fl := int64(math.Ceil(float64(c.delay+1)*c.cfg.Rate/c.cfg.AudioRate)) + int64(c.plan.Decim)*2
-		flushIn = max(flushIn, fl)
+		flushIn = max(flushIn, r.flushSamples(c))
+	}
+	stride := 0 // with a Channeliser: the outputs a block can give per channel
+	if r.bank != nil {
+		hist = r.bank.n - 1
+		stride = r.bank.MaxOut(block)
 	}
 	nch := len(r.chans)
 	inflight := 2*workers + 4
@@ -118,10 +169,14 @@ func (r *Receiver) run(src SampleReader, raw io.Reader, ss int, decode func([]co
 		if raw != nil {
 			j.raw = make([]byte, (hist+block)*ss)
 		} else {
-			j.win = make([]complex64, hist+block)
+			j.win = make([]complex64, hist+block, hist+block+pad)
 		}
-		for i, c := range r.chans {
-			j.outs[i] = make([]complex64, 0, c.first.MaxOut(block))
+		if r.bank != nil {
+			j.mat = make([]complex64, nch*stride)
+		} else {
+			for i, c := range r.chans {
+				j.outs[i] = make([]complex64, 0, c.first.MaxOut(block))
+			}
 		}
 		free <- j
 	}
@@ -242,30 +297,46 @@ func (r *Receiver) run(src SampleReader, raw io.Reader, ss int, decode func([]co
 			var gouts [4][]complex64
 			var w []complex64
 			if raw != nil {
-				w = make([]complex64, hist+rawChunk)
+				w = make([]complex64, hist+chunk, hist+chunk+pad)
+			}
+			var bw *bankWork
+			if r.bank != nil {
+				bw = r.bank.newWork()
 			}
 			for j := range work {
 				for i := range j.outs {
 					j.outs[i] = j.outs[i][:0]
 				}
-				if raw == nil {
-					r.firstStages(units, j.outs, &gouts, j.win[:hist+j.n], hist, j.a)
-					close(j.done)
-					continue
-				}
-				for s := 0; s < j.n; s += rawChunk {
-					e := min(s+rawChunk, j.n)
-					// job window indices s … hist+e into w[0 : hist+e−s]
-					ww := w[:hist+e-s]
-					lo, hi := max(s, j.from), min(hist+e, j.to)
-					if lo >= hi {
-						clear(ww)
-					} else {
-						clear(ww[:lo-s])
-						decode(ww[lo-s:hi-s], j.raw[lo*ss:hi*ss])
-						clear(ww[hi-s:])
+				cnt := 0 // sub-band outputs so far
+				first := func(win []complex64, a int64) {
+					if r.bank != nil {
+						cnt += r.bank.block(j.mat[cnt:], stride, r.sel, win, a, bw)
+						return
 					}
-					r.firstStages(units, j.outs, &gouts, ww, hist, j.a+int64(s))
+					r.firstStages(units, j.outs, &gouts, win, hist, a)
+				}
+				if raw == nil {
+					first(j.win[:hist+j.n], j.a)
+				} else {
+					for s := 0; s < j.n; s += chunk {
+						e := min(s+chunk, j.n)
+						// job window indices s … hist+e into w[0 : hist+e−s]
+						ww := w[:hist+e-s]
+						lo, hi := max(s, j.from), min(hist+e, j.to)
+						if lo >= hi {
+							clear(ww)
+						} else {
+							clear(ww[:lo-s])
+							decode(ww[lo-s:hi-s], j.raw[lo*ss:hi*ss])
+							clear(ww[hi-s:])
+						}
+						first(ww, j.a+int64(s))
+					}
+				}
+				if r.bank != nil {
+					for i := range j.outs {
+						j.outs[i] = j.mat[i*stride : i*stride+cnt]
+					}
 				}
 				close(j.done)
 			}
@@ -286,7 +357,11 @@ func (r *Receiver) run(src SampleReader, raw io.Reader, ss int, decode func([]co
 			failed := false
 			for j := range feeds[i] {
 				if !failed {
-					audio = c.ProcessFirst(audio, j.outs[i])
+					if r.bank != nil {
+						audio = c.Process(audio, j.outs[i])
+					} else {
+						audio = c.ProcessFirst(audio, j.outs[i])
+					}
 					out := audio
 					d := min(skip, len(out))
 					out, skip = out[d:], skip-d
@@ -335,6 +410,9 @@ type firstUnit struct {
 // and one: BenchmarkShiftGroup, per 4096 samples, 2.55 µs for four, 1.4
 // µs for two, 1.0 µs for one).
 func (r *Receiver) firstUnits() []firstUnit {
+	if r.bank != nil {
+		return nil
+	}
 	type key struct{ l, d, phase int }
 	var order []key
 	same := map[key][]int{}

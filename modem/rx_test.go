@@ -66,28 +66,30 @@ func TestUnityConvention(t *testing.T) {
 		{"lsb 1k", LSB, 100e3, -1000},
 		{"lsb 2400", LSB, -30e3, -2400},
 	} {
-		t.Run(tc.name, func(t *testing.T) {
-			const a = 0.3
-			x := complexTone(n, a, tc.offset+tc.f, rate)
-			y := decode(t, RxConfig{Rate: rate, Offset: tc.offset, Mode: tc.mode}, x)
-			seg := y[4800 : 4800+38400] // steady state, 0.8 s: whole periods of each f
-			got := toneAmp(seg, math.Abs(tc.f), 48000)
-			if d := db(got / a); math.Abs(d) > tolDB {
-				t.Errorf("amplitude %.5f, want %.5f (%.3f dB)", got, a, d)
-			}
-			// Time alignment (Channel doc): audio sample k is the capture
-			// at time k/48000, so the tone comes out as a·cos(2πf·k/48000)
-			// with phase 0; tolerance half a capture sample at 2500 Hz,
-			// 0.2°, rounded up to 0.5°.
-			const tolDeg = 0.5
-			var z complex128
-			for k, v := range seg {
-				z += complex(float64(v), 0) * cmplx.Exp(complex(0, -2*math.Pi*math.Abs(tc.f)*float64(k+4800)/48000))
-			}
-			if ph := cmplx.Phase(z) * 180 / math.Pi; math.Abs(ph) > tolDeg {
-				t.Errorf("phase %.2f°, want 0", ph)
-			}
-		})
+		for _, front := range rxFronts {
+			t.Run(tc.name+"/"+front.String(), func(t *testing.T) {
+				const a = 0.3
+				x := complexTone(n, a, tc.offset+tc.f, rate)
+				y, _ := decodeFront(t, front, RxConfig{Rate: rate, Offset: tc.offset, Mode: tc.mode}, x)
+				seg := y[4800 : 4800+38400] // steady state, 0.8 s: whole periods of each f
+				got := toneAmp(seg, math.Abs(tc.f), 48000)
+				if d := db(got / a); math.Abs(d) > tolDB {
+					t.Errorf("amplitude %.5f, want %.5f (%.3f dB)", got, a, d)
+				}
+				// Time alignment (Channel doc): audio sample k is the capture
+				// at time k/48000, so the tone comes out as a·cos(2πf·k/48000)
+				// with phase 0; tolerance half a capture sample at 2500 Hz,
+				// 0.2°, rounded up to 0.5°.
+				const tolDeg = 0.5
+				var z complex128
+				for k, v := range seg {
+					z += complex(float64(v), 0) * cmplx.Exp(complex(0, -2*math.Pi*math.Abs(tc.f)*float64(k+4800)/48000))
+				}
+				if ph := cmplx.Phase(z) * 180 / math.Pi; math.Abs(ph) > tolDeg {
+					t.Errorf("phase %.2f°, want 0", ph)
+				}
+			})
+		}
 	}
 }
 
@@ -107,10 +109,12 @@ func TestAMUnity(t *testing.T) {
 			s, c := math.Sincos(2*math.Pi*30e3*tt + 0.7)
 			x[i] = complex(float32(env*c), float32(env*s))
 		}
-		y := decode(t, RxConfig{Rate: rate, Offset: 30e3, Mode: mode}, x)
-		got := toneAmp(y[24000:24000+19200], f, 48000) // 0.4 s of whole periods after 0.5 s
-		if d := db(got / (A * m)); math.Abs(d) > tolDB {
-			t.Errorf("%v: amplitude %.5f, want A·m = %.5f (%.3f dB)", mode, got, A*m, d)
+		for _, front := range rxFronts {
+			y, _ := decodeFront(t, front, RxConfig{Rate: rate, Offset: 30e3, Mode: mode}, x)
+			got := toneAmp(y[24000:24000+19200], f, 48000) // 0.4 s of whole periods after 0.5 s
+			if d := db(got / (A * m)); math.Abs(d) > tolDB {
+				t.Errorf("%v %v: amplitude %.5f, want A·m = %.5f (%.3f dB)", mode, front, got, A*m, d)
+			}
 		}
 	}
 }
@@ -156,24 +160,27 @@ func TestSSBFigureOfMerit(t *testing.T) {
 	const rate = 480000.0
 	const n = 480000 * 4
 	const a, sigma2 = 0.01, 0.5
-	for _, mode := range []Mode{USB, LSB} {
+	for _, tc := range []struct {
+		mode  Mode
+		front FrontEnd
+	}{{USB, FrontPerChannel}, {LSB, FrontPerChannel}, {USB, FrontChanneliser}, {LSB, FrontChanneliser}} {
+		mode := tc.mode
 		f := 1300.0
 		if mode == LSB {
 			f = -f
 		}
 		cfg := RxConfig{Rate: rate, Offset: 50e3, Mode: mode}
-		c, _ := NewChannel(cfg)
-		tone := decode(t, cfg, complexTone(n, a, 50e3+f, rate))
-		noise := decode(t, cfg, gaussNoise(n, sigma2, 7))
+		tone, c := decodeFront(t, tc.front, cfg, complexTone(n, a, 50e3+f, rate))
+		noise, _ := decodeFront(t, tc.front, cfg, gaussNoise(n, sigma2, 7))
 		seg := func(y []float32) []float32 { return y[4800 : len(y)-4800] }
 		ps := power(seg(tone))
 		pn := power(seg(noise))
 		snrOut := ps / pn
 		n0 := sigma2 / rate
 		snrIn := a * a / (n0 * noiseBandwidth(c))
-		t.Logf("%v: figure of merit %.3f dB", mode, 10*math.Log10(snrOut/snrIn))
+		t.Logf("%v %v: figure of merit %.3f dB", mode, tc.front, 10*math.Log10(snrOut/snrIn))
 		if d := 10 * math.Log10(snrOut/snrIn); math.Abs(d) > tolDB {
-			t.Errorf("%v: output SNR %.2f dB, input SNR in the band %.2f dB: figure of merit %.2f dB, want 0", mode, 10*math.Log10(snrOut), 10*math.Log10(snrIn), d)
+			t.Errorf("%v %v: output SNR %.2f dB, input SNR in the band %.2f dB: figure of merit %.2f dB, want 0", mode, tc.front, 10*math.Log10(snrOut), 10*math.Log10(snrIn), d)
 		}
 	}
 }
@@ -189,9 +196,12 @@ func TestAMFigureOfMerit(t *testing.T) {
 	const rate = 240000.0
 	const n = 240000 * 4
 	const A, sigma2 = 0.5, 0.05
-	for _, mu := range []float64{1, 0.5} {
+	for _, tc := range []struct {
+		mu    float64
+		front FrontEnd
+	}{{1, FrontPerChannel}, {0.5, FrontPerChannel}, {1, FrontChanneliser}, {0.5, FrontChanneliser}} {
+		mu := tc.mu
 		cfg := RxConfig{Rate: rate, Offset: -20e3, Mode: AM}
-		c, _ := NewChannel(cfg)
 		x := gaussNoise(n, sigma2, 11)
 		clean := make([]complex64, n)
 		for i := range x {
@@ -201,8 +211,8 @@ func TestAMFigureOfMerit(t *testing.T) {
 			clean[i] = complex(float32(env*co), float32(env*s))
 			x[i] += clean[i]
 		}
-		y := decode(t, cfg, x)
-		ref := decode(t, cfg, clean)
+		y, c := decodeFront(t, tc.front, cfg, x)
+		ref, _ := decodeFront(t, tc.front, cfg, clean)
 		seg := func(y []float32) []float32 { return y[12000 : len(y)-4800] }
 		ys, rs := seg(y), seg(ref)
 		noise := make([]float32, len(ys))
@@ -213,9 +223,9 @@ func TestAMFigureOfMerit(t *testing.T) {
 		w := noiseBandwidth(c) / 2
 		snrC := A * A * (1 + mu*mu/2) / (sigma2 / rate * w)
 		want := mu * mu / (2 + mu*mu)
-		t.Logf("μ=%g: figure of merit %.4f (%.2f dB), theory %.4f", mu, snrOut/snrC, 10*math.Log10(snrOut/snrC), want)
+		t.Logf("μ=%g %v: figure of merit %.4f (%.2f dB), theory %.4f", mu, tc.front, snrOut/snrC, 10*math.Log10(snrOut/snrC), want)
 		if d := 10 * math.Log10(snrOut/snrC/want); math.Abs(d) > tolDB {
-			t.Errorf("μ=%g: figure of merit %.3f, want %.3f (%.2f dB off)", mu, snrOut/snrC, want, d)
+			t.Errorf("μ=%g %v: figure of merit %.3f, want %.3f (%.2f dB off)", mu, tc.front, snrOut/snrC, want, d)
 		}
 	}
 }
@@ -234,13 +244,15 @@ func TestAdjacentChannel(t *testing.T) {
 		for i := range x {
 			x[i] += y[i]
 		}
-		out := decode(t, RxConfig{Rate: rate, Offset: 100e3}, x)
-		seg := out[4800 : 4800+38400]
-		amp := toneAmp(seg, 1000, 48000)
-		snr := 10 * math.Log10((amp*amp/2)/(power(seg)-amp*amp/2))
-		t.Logf("interferer at %+g Hz: wanted SNR %.1f dB", df, snr)
-		if snr < minSNR {
-			t.Errorf("interferer at %+g Hz: wanted SNR %.1f dB, want > %g", df, snr, minSNR)
+		for _, front := range rxFronts {
+			out, _ := decodeFront(t, front, RxConfig{Rate: rate, Offset: 100e3}, x)
+			seg := out[4800 : 4800+38400]
+			amp := toneAmp(seg, 1000, 48000)
+			snr := 10 * math.Log10((amp*amp/2)/(power(seg)-amp*amp/2))
+			t.Logf("%v: interferer at %+g Hz: wanted SNR %.1f dB", front, df, snr)
+			if snr < minSNR {
+				t.Errorf("%v: interferer at %+g Hz: wanted SNR %.1f dB, want > %g", front, df, snr, minSNR)
+			}
 		}
 	}
 }
@@ -248,40 +260,51 @@ func TestAdjacentChannel(t *testing.T) {
 func TestAliasRejection(t *testing.T) {
 	// Issue 5: a strong signal outside the channel stays 80 dB down in the
 	// audio, wherever aliasing could fold it back: near multiples of every
-	// stage's output rate from the channel centre. The stages are designed
-	// for 80 dB (DefaultRxAtten).
+	// stage's output rate from the channel centre (through a Channeliser
+	// also of its sub-band rate). The stages are designed for 80 dB
+	// (DefaultRxAtten).
 	const maxDB = -80.0
 	for _, rate := range []float64{2.4e6, 2.048e6} {
-		cfg := RxConfig{Rate: rate, Offset: 200e3}
-		c, err := NewChannel(cfg)
-		if err != nil {
-			t.Fatal(err)
-		}
-		p := c.Plan()
-		centre := 200e3 + 1500.0
-		var offs []float64
-		r := rate / float64(p.First.Decim)
-		for _, d := range append([]int{1}, p.Stages...) {
-			r /= float64(d)
-			for _, k := range []float64{1, 2} {
-				offs = append(offs, k*r+700, -k*r-900)
+		for _, front := range rxFronts {
+			cfg := RxConfig{Rate: rate, Offset: 200e3}
+			r, err := NewReceiverFront([]RxConfig{cfg}, front)
+			if err != nil {
+				t.Fatal(err)
 			}
-		}
-		const n = 1 << 21
-		worst := math.Inf(-1)
-		defer func() { t.Logf("%g S/s: worst alias %.1f dB", rate, worst) }()
-		for _, off := range offs {
-			f := centre + off
-			if math.Abs(f) >= rate/2 {
-				continue
+			p := r.Channels()[0].Plan()
+			var rates []float64
+			if b := r.Channeliser(); b != nil {
+				rates = append(rates, b.OutRate())
 			}
-			out := decode(t, cfg, complexTone(n, 1, f, rate))
-			seg := out[4800 : len(out)-4800]
-			lv := 10 * math.Log10(power(seg)*2)
-			worst = max(worst, lv)
-			if lv > maxDB {
-				t.Errorf("%g S/s, tone at %+.0f Hz from the channel centre: audio at %.1f dB, want ≤ %g", rate, off, lv, maxDB)
+			rt := p.InRate / float64(p.First.Decim)
+			rates = append(rates, rt)
+			for _, d := range p.Stages {
+				rt /= float64(d)
+				rates = append(rates, rt)
 			}
+			centre := 200e3 + 1500.0
+			var offs []float64
+			for _, rt := range rates {
+				for _, k := range []float64{1, 2} {
+					offs = append(offs, k*rt+700, -k*rt-900)
+				}
+			}
+			const n = 1 << 21
+			worst := math.Inf(-1)
+			for _, off := range offs {
+				f := centre + off
+				if math.Abs(f) >= rate/2 {
+					continue
+				}
+				out, _ := decodeFront(t, front, cfg, complexTone(n, 1, f, rate))
+				seg := out[4800 : len(out)-4800]
+				lv := 10 * math.Log10(power(seg)*2)
+				worst = max(worst, lv)
+				if lv > maxDB {
+					t.Errorf("%g S/s %v, tone at %+.0f Hz from the channel centre: audio at %.1f dB, want ≤ %g", rate, front, off, lv, maxDB)
+				}
+			}
+			t.Logf("%g S/s %v: worst alias %.1f dB", rate, front, worst)
 		}
 	}
 }
@@ -632,24 +655,30 @@ func TestRoundTrip(t *testing.T) {
 		if tc.mode == "lsb" {
 			mode = LSB
 		}
-		audio := decode(t, RxConfig{Rate: tc.rate, Offset: tc.offset, Mode: mode}, iqs)
-		// the modulator's delay in audio samples, rounded: the receiver
-		// compensates its own
-		lag := int(math.Round(m.Delay() * fa / tc.rate))
-		best := 0.0
-		for d := lag - 2; d <= lag+2; d++ {
-			var sxy, sxx, syy float64
-			for i := 2000; i < len(src)-2000; i++ {
-				x, y := float64(src[i]), float64(audio[i+d])
-				sxy += x * y
-				sxx += x * x
-				syy += y * y
+		cfg := RxConfig{Rate: tc.rate, Offset: tc.offset, Mode: mode}
+		for _, front := range rxFronts {
+			if _, err := NewReceiverFront([]RxConfig{cfg}, front); err != nil {
+				continue // no channeliser fits 250 kS/s with 48 kHz audio
 			}
-			best = max(best, sxy/math.Sqrt(sxx*syy))
-		}
-		t.Logf("%s at %g S/s: correlation %.5f", tc.mode, tc.rate, best)
-		if best < minCorr {
-			t.Errorf("%s at %g S/s: correlation %.4f, want ≥ %g", tc.mode, tc.rate, best, minCorr)
+			audio, _ := decodeFront(t, front, cfg, iqs)
+			// the modulator's delay in audio samples, rounded: the receiver
+			// compensates its own
+			lag := int(math.Round(m.Delay() * fa / tc.rate))
+			best := 0.0
+			for d := lag - 2; d <= lag+2; d++ {
+				var sxy, sxx, syy float64
+				for i := 2000; i < len(src)-2000; i++ {
+					x, y := float64(src[i]), float64(audio[i+d])
+					sxy += x * y
+					sxx += x * x
+					syy += y * y
+				}
+				best = max(best, sxy/math.Sqrt(sxx*syy))
+			}
+			t.Logf("%s at %g S/s %v: correlation %.5f", tc.mode, tc.rate, front, best)
+			if best < minCorr {
+				t.Errorf("%s at %g S/s %v: correlation %.4f, want ≥ %g", tc.mode, tc.rate, front, best, minCorr)
+			}
 		}
 	}
 }

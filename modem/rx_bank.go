@@ -1,0 +1,169 @@
+package modem
+
+import "math"
+
+// FrontEnd chooses how a Receiver runs the first stage of its channels.
+type FrontEnd int
+
+// Front ends.
+const (
+	// FrontAuto lets the receiver choose by the planner rule (see
+	// NewReceiverFront).
+	FrontAuto FrontEnd = iota
+	// FrontPerChannel gives every channel its own first stage: a
+	// frequency-translating comb decimator at the capture rate,
+	// grouped by four or two channels a kernel pass (Receiver).
+	FrontPerChannel
+	// FrontChanneliser splits the capture once with a Channeliser and
+	// gives each channel its nearest sub-band, where the channel's own
+	// chain, planned at the sub-band rate, fine-tunes and decimates it.
+	FrontChanneliser
+)
+
+// String returns auto, per-channel or channeliser.
+func (f FrontEnd) String() string {
+	switch f {
+	case FrontPerChannel:
+		return "per-channel"
+	case FrontChanneliser:
+		return "channeliser"
+	}
+	return "auto"
+}
+
+// Planner rule (measured, see bench/README.md): a Channeliser costs about
+// as much as bankMinChannels per-channel first stages, so the receiver
+// uses one from that many channels on.
+const bankMinChannels = 8
+
+// bankMinBands is the fewest sub-bands worth a Channeliser: with fewer
+// the sub-band rate is near the capture rate and the channels' own
+// chains do all the decimation again.
+const bankMinBands = 16
+
+// maxRxBankBands bounds the receiver's Channeliser.
+const maxRxBankBands = 2048
+
+// bankPlan is a Channeliser design for a receiver.
+type bankPlan struct {
+	m, d int
+	pass float64
+	cost float64 // estimated operations per input sample, bank and chains
+}
+
+// planBank chooses the Channeliser for cfgs (defaults filled): among
+// sub-band counts M (powers of two from bankMinBands) and decimations D
+// from M/4 to M/2 (two- to fourfold oversampling) whose sub-band rate fs/D
+// every channel's own chain reaches the audio rate from by integer
+// steps (a work rate that divides the sub-band rate and the audio rate:
+// a rational resampler there would cost more than the bank saves), it
+// takes the one with the fewest estimated operations per input sample:
+// the bank's (Channeliser.Cost) plus, per channel, its chain's
+// multiplications (ChannelPlan.Cost) at the sub-band rate. The pass band
+// is fs/(2M) plus the widest channel's half-width, so that every channel
+// lies wholly in the flat band of its nearest sub-band. ok is false when
+// the channels differ in capture rate, audio rate or rejection, or no
+// design fits.
+func planBank(cfgs []RxConfig) (p bankPlan, ok bool) {
+	c0 := cfgs[0]
+	fs, fa := c0.Rate, c0.AudioRate
+	var protect float64
+	shapes := map[float64]bool{}
+	for _, c := range cfgs {
+		if c.Rate != fs || c.AudioRate != fa || c.AttenDB != c0.AttenDB {
+			return p, false
+		}
+		_, half, trans := c.channelShape()
+		pr := half + trans/2
+		shapes[pr] = true
+		protect = max(protect, pr)
+	}
+	// Decimations D with fs/D = fw·d2 for a work rate fw = fa/u: D
+	// divides fs·u/fa.
+	var qs []int
+	for u := 1; u <= 64 && fa/float64(u) >= 4*protect; u++ {
+		q := fs * float64(u) / fa
+		if q == math.Trunc(q) && q < 1<<20 {
+			qs = append(qs, int(q))
+		}
+	}
+	best := math.Inf(1)
+	for m := bankMinBands; m <= maxRxBankBands; m *= 2 {
+		pass := fs/float64(2*m) + protect
+		for d := m / 2; d >= m/4; d-- {
+			divides := false
+			for _, q := range qs {
+				divides = divides || q%d == 0
+			}
+			r := fs / float64(d)
+			if !divides || !(r > 2*pass) {
+				continue
+			}
+			chains, fits := 0.0, true
+			for pr := range shapes {
+				cp, err := PlanChannel(r, fa, 4*pr, pr, c0.AttenDB)
+				up := fa / cp.WorkRate
+				if err != nil || math.Abs(up-math.Round(up)) > 1e-9 {
+					fits = false
+					break
+				}
+				chains = max(chains, cp.Cost)
+			}
+			if !fits {
+				continue
+			}
+			b, err := NewChanneliserPlan(ChanneliserSpec{Rate: fs, Bands: m, Decim: d, Pass: pass, AttenDB: c0.AttenDB})
+			if err != nil {
+				continue
+			}
+			cost := b + float64(len(cfgs))*chains/float64(d)
+			if cost < best {
+				best = cost
+				p = bankPlan{m: m, d: d, pass: pass, cost: cost}
+			}
+		}
+	}
+	return p, !math.IsInf(best, 1)
+}
+
+// bankChains builds the Channeliser for cfgs (defaults filled) and each
+// channel's chain on its nearest sub-band.
+func bankChains(cfgs []RxConfig, p bankPlan) (*Channeliser, []int, []*Channel, error) {
+	bank, err := NewChanneliser(ChanneliserSpec{Rate: cfgs[0].Rate, Bands: p.m, Decim: p.d, Pass: p.pass, AttenDB: cfgs[0].AttenDB})
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	fs := bank.Rate()
+	d := float64(bank.Decim())
+	// Sub-band output j is taken at input index (j+1)·D − 1 and stands
+	// for time (j+1)·D − 1 − Delay(); the chain reads it as time j·D.
+	lag := (bank.Delay() - d + 1) / fs
+	bands := make([]int, len(cfgs))
+	chans := make([]*Channel, len(cfgs))
+	for i, cfg := range cfgs {
+		shift, _, _ := cfg.channelShape()
+		k, off := bank.Nearest(cfg.Offset + shift)
+		bands[i] = k
+		c, err := buildChannel(cfg, chainInput{rate: bank.OutRate(), offset: off - shift, lag: lag, fine: true})
+		if err != nil {
+			return nil, nil, nil, err
+		}
+		chans[i] = c
+	}
+	return bank, bands, chans, nil
+}
+
+// Channeliser returns the receiver's filter bank, or nil when every
+// channel has its own first stage.
+func (r *Receiver) Channeliser() *Channeliser { return r.bank }
+
+// bankFlush is the number of capture samples of zeros that push the
+// delayed tail of channel c out, through the Channeliser when there is
+// one.
+func (r *Receiver) flushSamples(c *Channel) int64 {
+	in := int64(1)
+	if r.bank != nil {
+		in = int64(r.bank.Decim())
+	}
+	return int64(math.Ceil(float64(c.delay+1)*c.cfg.Rate/c.cfg.AudioRate)) + int64(c.plan.Decim)*in*2
+}
