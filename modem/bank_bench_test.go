@@ -1,7 +1,9 @@
 package modem
 
 import (
+	"bytes"
 	"fmt"
+	"math"
 	"testing"
 
 	"gonum.org/v1/gonum/dsp/fourier"
@@ -77,5 +79,56 @@ func BenchmarkBankFold(b *testing.B) {
 				bankFoldAVX2(&vb[0], &win[0], &c.gp[2*3*c.d], c.m, c.d, c.rows, 3)
 			}
 		})
+	}
+}
+
+// BenchmarkReceiverFront times a Receiver over two seconds of a 2.4
+// MS/s cu8-coded capture (RunRaw, the command's path) for several channel
+// counts through each front end; the sinks discard the audio. With
+// -cpu 1 the time per operation is the CPU time: the planner rule
+// (bankMinChannels) is where the channeliser's column drops below the
+// per-channel one.
+func BenchmarkReceiverFront(b *testing.B) {
+	const rate = 2.4e6
+	const n = 2 * rate
+	x := testCapture(n)
+	raw := make([]byte, 2*n)
+	for i, v := range x {
+		raw[2*i] = byte(max(0, min(255, math.Round(float64(real(v))*127.5+127.5))))
+		raw[2*i+1] = byte(max(0, min(255, math.Round(float64(imag(v))*127.5+127.5))))
+	}
+	var lut [256]float32
+	for i := range lut {
+		lut[i] = (float32(i) - 127.5) / 127.5
+	}
+	dec := func(dst []complex64, b []byte) {
+		for i := range dst {
+			dst[i] = complex(lut[b[2*i]], lut[b[2*i+1]])
+		}
+	}
+	for _, nch := range []int{1, 4, 8, 16, 32, 64, 128} {
+		cfgs := make([]RxConfig, nch)
+		step := 2.3e6 / float64(nch)
+		for i := range cfgs {
+			cfgs[i] = RxConfig{Rate: rate, Offset: math.Round(-1.15e6 + step*(float64(i)+0.5))}
+		}
+		sinks := make([]func([]float32) error, nch)
+		for i := range sinks {
+			sinks[i] = func([]float32) error { return nil }
+		}
+		for _, front := range []FrontEnd{FrontPerChannel, FrontChanneliser} {
+			b.Run(fmt.Sprintf("ch=%d/%v", nch, front), func(b *testing.B) {
+				b.SetBytes(int64(len(raw)))
+				for b.Loop() {
+					r, err := NewReceiverFront(cfgs, front)
+					if err != nil {
+						b.Fatal(err)
+					}
+					if err := r.RunRaw(bytes.NewReader(raw), 2, dec, sinks); err != nil {
+						b.Fatal(err)
+					}
+				}
+			})
+		}
 	}
 }

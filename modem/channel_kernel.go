@@ -145,7 +145,11 @@ type interpTaps struct {
 
 // newInterpTaps returns the transposed layout of the phases ph (each of
 // k taps in window order).
-func newInterpTaps(ph [][]float32, k int) *interpTaps {
+func newInterpTaps(ph [][]float32, k int) *interpTaps { return newInterpTapsIQ(ph, ph, k) }
+
+// newInterpTapsIQ is newInterpTaps with the taps phq for the imaginary
+// parts of the samples (the odd lanes) instead of ph.
+func newInterpTapsIQ(ph, phq [][]float32, k int) *interpTaps {
 	u := len(ph)
 	t := &interpTaps{k: k, u: u, full: u / 4}
 	if u%4 != 0 {
@@ -156,7 +160,7 @@ func newInterpTaps(ph [][]float32, k int) *interpTaps {
 	for p, row := range ph {
 		for i, v := range row {
 			o := (i*g+p/4)*8 + 2*(p%4)
-			t.taps[o], t.taps[o+1] = v, v
+			t.taps[o], t.taps[o+1] = v, phq[p][i]
 		}
 	}
 	return t
@@ -164,18 +168,23 @@ func newInterpTaps(ph [][]float32, k int) *interpTaps {
 
 // interpGo is the reference loop of interpAVX2: for each input j <
 // len(dst)/len(ph) and phase p, dst[j·u + p] = Σₜ ph[p][t]·x[j + t].
-func interpGo(dst, x []complex64, ph [][]float32) {
+func interpGo(dst, x []complex64, ph [][]float32) { interpIQGo(dst, x, ph, ph) }
+
+// interpIQGo is interpGo with the taps phq for the imaginary parts:
+// dst[j·u + p] = Σₜ ph[p][t]·re x[j+t] + j·Σₜ phq[p][t]·im x[j+t].
+func interpIQGo(dst, x []complex64, ph, phq [][]float32) {
 	u := len(ph)
 	k := len(ph[0])
 	o := 0
 	for j := range len(dst) / u {
 		w := x[j : j+k]
-		for _, h := range ph {
+		for p, h := range ph {
 			h = h[:len(w)]
+			hq := phq[p][:len(w)]
 			var r, i float32
 			for t, v := range w {
 				r += h[t] * real(v)
-				i += h[t] * imag(v)
+				i += hq[t] * imag(v)
 			}
 			dst[o] = complex(r, i)
 			o++

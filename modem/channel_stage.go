@@ -369,7 +369,8 @@ func (f *Decimator) dot(dst, x []complex64, cnt int) []complex64 {
 // (interpAVX2, channel_kernel.go).
 type Interpolator struct {
 	ph  [][]float32 // ph[p][i] = u·h[p + i·u], reversed in i
-	kt  *interpTaps // ph for the assembly kernel (nil without it)
+	phq [][]float32 // the same for the imaginary parts: ph, but in an ssbDetector
+	kt  *interpTaps // ph, phq for the assembly kernel (nil without it)
 	u   int
 	k   int // taps per phase
 	l   int
@@ -380,22 +381,38 @@ type Interpolator struct {
 // (at the output rate, unity DC gain, copied). It panics if u < 1 or h is
 // empty.
 func NewInterpolator(h []float64, u int) *Interpolator {
-	if u < 1 || len(h) == 0 {
+	return newInterpolatorIQ(h, h, u)
+}
+
+// newInterpolatorIQ is NewInterpolator with the taps hq (same length as
+// h) for the imaginary parts of the samples: y[n·u + p] = Σᵢ u·(h[p +
+// i·u]·re x[n−i] + j·hq[p + i·u]·im x[n−i]).
+func newInterpolatorIQ(h, hq []float64, u int) *Interpolator {
+	if u < 1 || len(h) == 0 || len(hq) != len(h) {
 		panic("modem: invalid interpolator parameters")
 	}
 	k := (len(h) + u - 1) / u
 	it := &Interpolator{u: u, k: k, l: len(h)}
-	for p := range u {
-		row := make([]float32, k)
-		for i := range k {
-			if j := p + i*u; j < len(h) {
-				row[k-1-i] = float32(float64(u) * h[j])
+	rows := func(h []float64) [][]float32 {
+		var ph [][]float32
+		for p := range u {
+			row := make([]float32, k)
+			for i := range k {
+				if j := p + i*u; j < len(h) {
+					row[k-1-i] = float32(float64(u) * h[j])
+				}
 			}
+			ph = append(ph, row)
 		}
-		it.ph = append(it.ph, row)
+		return ph
+	}
+	it.ph = rows(h)
+	it.phq = it.ph
+	if &hq[0] != &h[0] {
+		it.phq = rows(hq)
 	}
 	if haveKernels {
-		it.kt = newInterpTaps(it.ph, k)
+		it.kt = newInterpTapsIQ(it.ph, it.phq, k)
 	}
 	it.buf = make([]complex64, k-1, 2*(k-1))
 	return it
@@ -439,6 +456,6 @@ func (it *Interpolator) run(out, x []complex64) {
 	if it.kt != nil {
 		it.kt.interp(out, x)
 	} else {
-		interpGo(out, x, it.ph)
+		interpIQGo(out, x, it.ph, it.phq)
 	}
 }

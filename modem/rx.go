@@ -146,6 +146,7 @@ type Channel struct {
 	stages []*Decimator
 	filt   *Decimator // the channel low-pass: a decimator by 1, for its kernel
 	interp *Interpolator
+	det    *ssbDetector // interpolator and product detector in one (SSB with an integer step to the audio rate)
 	rs     *Resampler
 	ssb    *SSBDemod
 	am     *AMDemod
@@ -265,7 +266,9 @@ func buildChannel(cfg RxConfig, in chainInput) (*Channel, error) {
 	case in.fine:
 		filt = kaiserMeetShift(half/fw, trans/fw, cfg.AttenDB, rest*fw)
 	}
-	if ih != nil {
+	if ih != nil && (cfg.Mode == USB || cfg.Mode == LSB) {
+		c.det = newSSBDetector(ih, int(math.Round(up)), shift, fa, c.delay)
+	} else if ih != nil {
 		c.interp = NewInterpolator(ih, int(math.Round(up)))
 	}
 	// After a Channeliser a first stage that would only mix (the plan's
@@ -273,7 +276,7 @@ func buildChannel(cfg RxConfig, in chainInput) (*Channel, error) {
 	// same filtering, with the mixer folded into it.
 	stages, d1 := plan.Stages, plan.First.Decim
 	if in.fine && d1 == 1 && len(stages) > 0 {
-		first, d1 = stageTaps[0], stages[0]
+		first, d1 = symmetric(stageTaps[0]), stages[0]
 		stages, stageTaps = stages[1:], stageTaps[1:]
 	}
 	ph := s % d1
@@ -291,8 +294,10 @@ func buildChannel(cfg RxConfig, in chainInput) (*Channel, error) {
 
 	switch cfg.Mode {
 	case USB, LSB:
-		c.ssb = NewSSBDemod(shift, fa)
-		c.ssb.Advance(-c.delay)
+		if c.det == nil {
+			c.ssb = NewSSBDemod(shift, fa)
+			c.ssb.Advance(-c.delay)
+		}
 	case AM:
 		c.am = NewAMDemod(fa)
 	case SAM:
@@ -304,6 +309,19 @@ func buildChannel(cfg RxConfig, in chainInput) (*Channel, error) {
 		c.delay += c.agc.Delay()
 	}
 	return c, nil
+}
+
+// symmetric returns h with each mirrored pair of taps replaced by its
+// mean: a linear-phase design is symmetric but for the rounding of its
+// window, and ShiftDecimator takes its paired kernel only for taps
+// symmetric bit for bit.
+func symmetric(h []float64) []float64 {
+	l := len(h)
+	s := make([]float64, l)
+	for k := range h {
+		s[k] = (h[k] + h[l-1-k]) / 2
+	}
+	return s
 }
 
 // Config returns the configuration with defaults filled in.
@@ -332,6 +350,9 @@ func (c *Channel) Reset() {
 	c.filt.Reset()
 	if c.interp != nil {
 		c.interp.Reset()
+	}
+	if c.det != nil {
+		c.det.Reset()
 	}
 	if c.rs != nil {
 		c.rs.Reset()
@@ -391,29 +412,30 @@ func (c *Channel) processFirst(dst []float32, y []complex64) []float32 {
 		x = c.sbuf[i]
 	}
 	c.f = c.filt.Process(c.f, x)
-	switch {
-	case c.interp != nil:
-		c.z = c.interp.Process(c.z, c.f)
-	case c.rs != nil:
-		c.z = c.rs.Process(c.z, c.f)
-	default:
-		c.z = append(c.z[:0], c.f...)
-	}
-	z := c.z
-	n := len(dst)
-	if cap(dst)-n < len(z) {
-		nd := make([]float32, n, 2*(n+len(z)))
-		copy(nd, dst)
-		dst = nd
-	}
-	out := dst[n : n+len(z)]
-	switch {
-	case c.ssb != nil:
-		c.ssb.Process(out, z)
-	case c.am != nil:
-		c.am.Process(out, z)
-	default:
-		c.sam.Process(out, z)
+	var out []float32
+	if c.det != nil {
+		m := len(c.f) * c.det.it.u
+		dst, out = growAudio(dst, m)
+		c.det.Process(out, c.f)
+	} else {
+		switch {
+		case c.interp != nil:
+			c.z = c.interp.Process(c.z, c.f)
+		case c.rs != nil:
+			c.z = c.rs.Process(c.z, c.f)
+		default:
+			c.z = append(c.z[:0], c.f...)
+		}
+		z := c.z
+		dst, out = growAudio(dst, len(z))
+		switch {
+		case c.ssb != nil:
+			c.ssb.Process(out, z)
+		case c.am != nil:
+			c.am.Process(out, z)
+		default:
+			c.sam.Process(out, z)
+		}
 	}
 	if c.agc != nil {
 		c.agc.Process(out, out)
@@ -422,5 +444,18 @@ func (c *Channel) processFirst(dst []float32, y []complex64) []float32 {
 			out[i] *= c.gain
 		}
 	}
-	return dst[:n+len(z)]
+	return dst
+}
+
+// growAudio extends dst by m samples, reallocating when its capacity is
+// short, and returns it and the new part.
+func growAudio(dst []float32, m int) (all, tail []float32) {
+	n := len(dst)
+	if cap(dst)-n < m {
+		nd := make([]float32, n, 2*(n+m))
+		copy(nd, dst)
+		dst = nd
+	}
+	dst = dst[:n+m]
+	return dst, dst[n:]
 }
