@@ -68,15 +68,15 @@ func planBank(cfgs []RxConfig) (p bankPlan, ok bool) {
 	c0 := cfgs[0]
 	fs, fa := c0.Rate, c0.AudioRate
 	var protect float64
-	shapes := map[float64]bool{}
+	type shape struct{ protect, trans float64 }
+	shapes := map[shape]bool{}
 	for _, c := range cfgs {
 		if c.Rate != fs || c.AudioRate != fa || c.AttenDB != c0.AttenDB {
 			return p, false
 		}
 		_, half, trans := c.channelShape()
-		pr := half + trans/2
-		shapes[pr] = true
-		protect = max(protect, pr)
+		shapes[shape{half + trans/2, trans}] = true
+		protect = max(protect, half+trans/2)
 	}
 	// Decimations D with fs/D = fw·d2 for a work rate fw = fa/u: D
 	// divides fs·u/fa.
@@ -100,14 +100,13 @@ func planBank(cfgs []RxConfig) (p bankPlan, ok bool) {
 				continue
 			}
 			chains, fits := 0.0, true
-			for pr := range shapes {
-				cp, err := PlanChannel(r, fa, 4*pr, pr, c0.AttenDB)
-				up := fa / cp.WorkRate
-				if err != nil || math.Abs(up-math.Round(up)) > 1e-9 {
+			for sh := range shapes {
+				ops, ok := chainOps(r, fa, sh.protect, sh.trans, c0.AttenDB)
+				if !ok {
 					fits = false
 					break
 				}
-				chains = max(chains, cp.Cost)
+				chains = max(chains, ops)
 			}
 			if !fits {
 				continue
@@ -116,7 +115,7 @@ func planBank(cfgs []RxConfig) (p bankPlan, ok bool) {
 			if err != nil {
 				continue
 			}
-			cost := b + float64(len(cfgs))*chains/float64(d)
+			cost := b + float64(len(cfgs))*chains/fs
 			if cost < best {
 				best = cost
 				p = bankPlan{m: m, d: d, pass: pass, cost: cost}
@@ -124,6 +123,28 @@ func planBank(cfgs []RxConfig) (p bankPlan, ok bool) {
 		}
 	}
 	return p, !math.IsInf(best, 1)
+}
+
+// chainOps estimates the floating-point operations per second of a
+// channel's chain of half-width protect and filter transition trans (Hz)
+// reading a sub-band at rate r:
+// the decimators (ChannelPlan.Cost), the channel filter at the work rate
+// and the interpolator to the audio rate with the detector (complex taps,
+// real output), two operations a multiply-add. ok is false when the work
+// rate does not reach the audio rate by an integer step.
+func chainOps(r, fa, protect, trans, attenDB float64) (ops float64, ok bool) {
+	cp, err := PlanChannel(r, fa, 4*protect, protect, attenDB)
+	if err != nil {
+		return 0, false
+	}
+	fw := cp.WorkRate
+	up := fa / fw
+	if math.Abs(up-math.Round(up)) > 1e-9 {
+		return 0, false
+	}
+	filt := float64(KaiserOrder(trans, fw, attenDB) + 1)
+	interp := float64(KaiserOrder(fw-2*protect, fa, attenDB)+1) / math.Round(up)
+	return 2*cp.Cost*r + 2*filt*fw + 4*interp*fa, true
 }
 
 // bankChains builds the Channeliser for cfgs (defaults filled) and each

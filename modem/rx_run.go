@@ -148,7 +148,15 @@ func (r *Receiver) run(src SampleReader, raw io.Reader, ss int, decode func([]co
 		pad = 3 * r.bank.Decim()
 	}
 	if block <= 0 {
-		block = 1 << 16
+		// The first-stage outputs of the blocks in flight, one slot per
+		// channel, stay within rxOutBudget bytes (many channels, small
+		// decimations), down to one decoding chunk a block.
+		dmin := 1 << 16
+		for _, c := range r.chans {
+			dmin = min(dmin, c.first.d)
+		}
+		per := len(r.chans) * 8 * (2*workers + 4) // bytes per output of every channel in flight
+		block = max(rawChunk, min(1<<16, rxOutBudget/per*dmin/rawChunk*rawChunk))
 	}
 	hist := 0
 	var flushIn int64 // capture samples of zeros that push the delayed tail out
@@ -455,6 +463,10 @@ func (r *Receiver) firstUnits() []firstUnit {
 	}
 	return units
 }
+
+// rxOutBudget bounds the first-stage outputs a per-channel Receiver
+// keeps for its blocks in flight (bytes).
+const rxOutBudget = 16 << 20
 
 // rawChunk is the number of encoded capture samples a Receiver worker
 // decodes at a time (32 KiB of complex64 plus the history): small enough

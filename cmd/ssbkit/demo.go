@@ -456,6 +456,14 @@ func (d *demo) summary(truth demoTruthFile, info *demoStep, signals []detected, 
 		w("| %d | %s | %.0f | %.0f | %.1f | %s | %.0f | %+.0f | %s | %s |\n",
 			i+1, s.Kind, s.OffsetHz, bt.CenterHz+s.OffsetHz, s.SNRdB, st.Mode, mid, s.OffsetHz-mid, st.Label, audio)
 	}
+	if n := len(wavs); n > 0 {
+		// the receiver's planner rule (modem.NewReceiverFront)
+		how := "each with its own first stage (a channeliser splits the capture once from 8 channels on)"
+		if n >= 8 {
+			how = "through one channeliser, a polyphase filter bank that splits the capture once (used from 8 channels on)"
+		}
+		w("\n`ssbkit rx` decoded the %d voice signals in one pass, %s.\n", n, how)
+	}
 	if len(signals) == 0 {
 		w("(no signals: the spectrum step did not run or found none)\n")
 	}
