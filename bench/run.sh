@@ -2,10 +2,11 @@
 # ssbkit side by side with the numpy/scipy references in ../shared/bench
 # (see bench/README.md). Usage:
 #
-#   bench/run.sh [rx] [kernels] [RUNS]
+#   bench/run.sh [rx] [kernels] [channels] [RUNS]
 #
 # Sections: setup (build, tools, test data), rx (decode), kernels (the
-# same decode built with and without the assembly kernels). Each section
+# same decode built with and without the assembly kernels), channels (1,
+# 32, 128 and 256 channels in one pass, side by side). Each section
 # times its commands alternately on the same file, RUNS times each
 # (default 3), and prints input MS/s, the ratio, CPU time and peak
 # resident memory (GNU time). The machine is shared: quote ratios from
@@ -18,9 +19,9 @@ sections=()
 runs=3
 for a in "$@"; do
 	case $a in
-	rx | kernels) sections+=("$a") ;;
+	rx | kernels | channels) sections+=("$a") ;;
 	[0-9]*) runs=$a ;;
-	*) echo "usage: $0 [rx] [kernels] [RUNS]" >&2; exit 2 ;;
+	*) echo "usage: $0 [rx] [kernels] [channels] [RUNS]" >&2; exit 2 ;;
 	esac
 done
 [ ${#sections[@]} -gt 0 ] || sections=(rx)
@@ -90,6 +91,67 @@ section_kernels() {
 		printf "  best CPU:  1 channel %.2f s (purego %.2f s), 4 channels %.2f s (purego %.2f s)\n", c1, d1, c4, d4
 		printf "  four in one pass cost %.2f single passes with the kernels, %.2f with -tags purego\n", a4/a1, b4/b1 }'
 	$PY "$refdir/check_decode.py" "$work/k_a.wav@120000" "$work/k_b.wav@120000" | sed 's/^/    /'
+}
+
+# ---------------------------------------------------------------- channels
+# offsets N: the three voice signals of the capture (-300k, +120k, +500k)
+# and N-3 more channels spread evenly over ±1.15 MHz, none within 6 kHz
+# of another.
+channel_offsets() {
+	awk -v n="$1" 'BEGIN {
+		split("-300000 120000 500000", sig, " ")
+		k = 0
+		for (i = 1; i <= 3 && k < n; i++) { off[++k] = sig[i] }
+		m = n - k; step = 2300000 / (m + 3)
+		for (i = 0; k < n; i++) {
+			f = int(-1150000 + step * (i + 0.5)); ok = 1
+			for (j = 1; j <= k; j++) if ((f - off[j]) ^ 2 < 36e6) ok = 0
+			if (ok) off[++k] = f
+			if (i > 10 * n) break
+		}
+		for (j = 1; j <= k; j++) printf "--offset %d ", off[j]
+	}'
+}
+
+section_channels() {
+	echo
+	echo "== channels: 1, 32, 128 and 256 USB channels in one pass (AGC off), against one single-channel pass"
+	local counts=(1 32 128 256) c i
+	for c in "${counts[@]}"; do : >"$work/ch_$c"; done
+	# what the receiver chose, once
+	for c in 32 128 256; do
+		rm -rf "$work/chs"; mkdir -p "$work/chs"
+		local said
+		# shellcheck disable=SC2046
+		said=$("$ssbkit" rx "$cap" --rate 2.4M $(channel_offsets "$c") --agc off -o "$work/chs/c_{freq}.wav" 2>&1 | grep channeliser || true)
+		echo "  ${said:-$c channels: each its own first stage}"
+	done
+	for i in $(seq "$runs"); do
+		for c in "${counts[@]}"; do
+			rm -rf "$work/chs"; mkdir -p "$work/chs"
+			if [ "$c" = 1 ]; then
+				timed "ssbkit rx, 1 channel (run $i)" "$work/ch_1" "$ssbkit" rx "$cap" --rate 2.4M --offset 120k --agc off -q -o "$work/chs/c_{freq}.wav"
+			else
+				# shellcheck disable=SC2046
+				timed "ssbkit rx, $c channels (run $i)" "$work/ch_$c" "$ssbkit" rx "$cap" --rate 2.4M $(channel_offsets "$c") --agc off -q -o "$work/chs/c_{freq}.wav"
+			fi
+		done
+	done
+	local b1 m1 cb1 cm1
+	b1=$(best "$work/ch_1"); m1=$(median "$work/ch_1"); cb1=$(bestcpu "$work/ch_1"); cm1=$(mediancpu "$work/ch_1")
+	echo "  channels  best wall  (single passes)  median wall  (passes)  best CPU  (passes)  median CPU  (passes)  peak memory  goal (wall)"
+	for c in "${counts[@]}"; do
+		awk -v c="$c" -v b="$(best "$work/ch_$c")" -v m="$(median "$work/ch_$c")" -v cb="$(bestcpu "$work/ch_$c")" -v cm="$(mediancpu "$work/ch_$c")" \
+			-v b1="$b1" -v m1="$m1" -v cb1="$cb1" -v cm1="$cm1" -v pk="$(peak "$work/ch_$c")" 'BEGIN {
+			goal = (c == 32) ? "≤ 2.5" : (c == 128) ? "≤ 5" : (c == 1) ? "as today" : ""
+			printf "  %8d  %8.3f s  (%5.2f)          %8.3f s  (%5.2f)   %6.3f s  (%5.2f)  %7.3f s  (%5.2f)  %7.1f MB   %s\n", c, b, b/b1, m, m/m1, cb, cb/cb1, cm, cm/cm1, pk/1024, goal }'
+	done
+	echo "  audio of the capture's three voice signals from the 128-channel pass (check_decode.py):"
+	rm -rf "$work/chs"; mkdir -p "$work/chs"
+	# shellcheck disable=SC2046
+	"$ssbkit" rx "$cap" --rate 2.4M $(channel_offsets 128) --agc off -q -o "$work/chs/c_{freq}.wav"
+	$PY "$refdir/check_decode.py" "$work/chs/c_-300000.wav@-300000" "$work/chs/c_+120000.wav@120000" "$work/chs/c_+500000.wav@500000" | sed 's/^/    /'
+	rm -rf "$work/chs"
 }
 
 echo "input: $cap ($insamples samples); $(nproc) cores; load: $(cut -d' ' -f1-3 /proc/loadavg)"

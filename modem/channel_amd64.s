@@ -738,3 +738,120 @@ tone:
 tdone:
 	VZEROUPPER
 	RET
+
+// interpEven gathers the even float32 lanes into the low half.
+DATA interpEven<>+0(SB)/4, $0
+DATA interpEven<>+4(SB)/4, $2
+DATA interpEven<>+8(SB)/4, $4
+DATA interpEven<>+12(SB)/4, $6
+DATA interpEven<>+16(SB)/4, $1
+DATA interpEven<>+20(SB)/4, $3
+DATA interpEven<>+24(SB)/4, $5
+DATA interpEven<>+28(SB)/4, $7
+GLOBL interpEven<>(SB), RODATA|NOPTR, $32
+
+// IRSTORE sums the lane pairs of the accumulators A + B (four phases of
+// one input, (Re·Re, −Im·Im) each) into four float32 outputs at ADDR;
+// it uses Y13, Y14 and Y12 = interpEven.
+#define IRSTORE(A, B, ADDR) \
+	VADDPS    B, A, Y13 \
+	VPERMILPS $0xB1, Y13, Y14 \
+	VADDPS    Y14, Y13, Y13 \
+	VPERMPS   Y13, Y12, Y13 \
+	VMOVUPS   X13, ADDR
+
+// func interpRealAVX2(dst *float32, x *complex64, n int, taps *float32, k, groups, u int)
+//
+// interpAVX2 with real outputs, four inputs a pass: for each group of
+// four phases the tap rows t and t+1 are loaded once and feed the eight
+// accumulators (four inputs, even and odd taps), each input's sample
+// broadcast (VBROADCASTSD); then each input's pair of accumulators is
+// summed and its lanes added in pairs (the detector's Re c·Re z −
+// Im c·Im z) to four float32 outputs. Eight independent FMA chains keep
+// the loop from waiting on FMA latency (interpAVX2 has two).
+TEXT ·interpRealAVX2(SB), NOSPLIT, $0-56
+	MOVQ    dst+0(FP), DI
+	MOVQ    x+8(FP), SI
+	MOVQ    n+16(FP), CX
+	MOVQ    k+32(FP), R9
+	MOVQ    groups+40(FP), DX
+	SHLQ    $5, DX // bytes of a tap row
+	MOVQ    u+48(FP), R11
+	SHLQ    $2, R11 // bytes of one input's outputs
+	VMOVDQU interpEven<>(SB), Y12
+	TESTQ   CX, CX
+	JZ      irdone
+
+irouter:
+	MOVQ taps+24(FP), BX // group g's taps
+	MOVQ DI, R14         // its outputs for input j
+	MOVQ groups+40(FP), R12
+
+irgroup:
+	VXORPS Y0, Y0, Y0
+	VXORPS Y1, Y1, Y1
+	VXORPS Y2, Y2, Y2
+	VXORPS Y3, Y3, Y3
+	VXORPS Y4, Y4, Y4
+	VXORPS Y5, Y5, Y5
+	VXORPS Y6, Y6, Y6
+	VXORPS Y7, Y7, Y7
+	MOVQ   BX, R8
+	XORQ   R13, R13
+	MOVQ   R9, R10
+	SUBQ   $1, R10
+
+irpair:
+	CMPQ         R13, R10
+	JGE          irone
+	VMOVUPS      (R8), Y8
+	VMOVUPS      (R8)(DX*1), Y9
+	VBROADCASTSD (SI)(R13*8), Y10
+	VBROADCASTSD 8(SI)(R13*8), Y11
+	VFMADD231PS  Y8, Y10, Y0
+	VFMADD231PS  Y9, Y11, Y4
+	VBROADCASTSD 16(SI)(R13*8), Y10
+	VFMADD231PS  Y8, Y11, Y1
+	VFMADD231PS  Y9, Y10, Y5
+	VBROADCASTSD 24(SI)(R13*8), Y11
+	VFMADD231PS  Y8, Y10, Y2
+	VFMADD231PS  Y9, Y11, Y6
+	VBROADCASTSD 32(SI)(R13*8), Y10
+	VFMADD231PS  Y8, Y11, Y3
+	VFMADD231PS  Y9, Y10, Y7
+	LEAQ         (R8)(DX*2), R8
+	ADDQ         $2, R13
+	JMP          irpair
+
+irone:
+	CMPQ         R13, R9
+	JGE          irsum
+	VMOVUPS      (R8), Y8
+	VBROADCASTSD (SI)(R13*8), Y10
+	VFMADD231PS  Y8, Y10, Y0
+	VBROADCASTSD 8(SI)(R13*8), Y10
+	VFMADD231PS  Y8, Y10, Y1
+	VBROADCASTSD 16(SI)(R13*8), Y10
+	VFMADD231PS  Y8, Y10, Y2
+	VBROADCASTSD 24(SI)(R13*8), Y10
+	VFMADD231PS  Y8, Y10, Y3
+
+irsum:
+	IRSTORE(Y0, Y4, (R14))
+	IRSTORE(Y1, Y5, (R14)(R11*1))
+	LEAQ    (R14)(R11*2), AX
+	IRSTORE(Y2, Y6, (AX))
+	IRSTORE(Y3, Y7, (AX)(R11*1))
+	ADDQ    $32, BX
+	ADDQ    $16, R14
+	DECQ    R12
+	JNZ     irgroup
+
+	ADDQ $32, SI       // four inputs on
+	LEAQ (DI)(R11*4), DI
+	SUBQ $4, CX
+	JG   irouter
+
+irdone:
+	VZEROUPPER
+	RET

@@ -53,3 +53,7 @@ func bankFoldAVX2(vb, win *complex64, g0 *float32, m, d, rows, e int) {
 func bankGatherAVX2(out *complex64, stride int, vb *complex64, rows, offs *int32, n int) {
 	panic("modem: no assembly kernels in this build")
 }
+
+func interpRealAVX2(dst *float32, x *complex64, n int, taps *float32, k, groups, u int) {
+	panic("modem: no assembly kernels in this build")
+}

@@ -451,6 +451,67 @@ func (it *Interpolator) Process(dst, src []complex64) []complex64 {
 	return dst
 }
 
+// processReal is Process with the two parts of each output summed,
+// dst[m] = re y[m] + im y[m] (ssbDetector: Re c·Re z + (−Im c)·Im z), into
+// dst[:len(src)·u] (reallocated when short).
+func (it *Interpolator) processReal(dst []float32, src []complex64) []float32 {
+	n := len(src)
+	if cap(dst) < n*it.u {
+		dst = make([]float32, n*it.u)
+	}
+	dst = dst[:n*it.u]
+	k := it.k
+	hd := min(k-1, n)
+	head := append(it.buf[:k-1], src[:hd]...)
+	it.runReal(dst[:hd*it.u], head)
+	if n > hd {
+		it.runReal(dst[hd*it.u:], src)
+	}
+	if n >= k-1 {
+		copy(it.buf[:k-1], src[n-(k-1):])
+	} else {
+		copy(it.buf[:k-1], head[n:])
+	}
+	return dst
+}
+
+// runReal is run for processReal: whole groups of four inputs by the
+// kernel when the phases fill whole groups of four, the rest in Go.
+func (it *Interpolator) runReal(out []float32, x []complex64) {
+	n := len(out) / it.u
+	done := 0
+	if it.kt != nil && it.kt.part == 0 && n >= 4 {
+		done = n &^ 3
+		interpRealAVX2(&out[0], &x[0], done, &it.kt.taps[0], it.k, it.kt.full, it.u)
+	}
+	if done < n {
+		interpRealGo(out[done*it.u:], x[done:], it.ph, it.phq)
+	}
+}
+
+// interpRealGo is the reference loop of interpRealAVX2: for each input j
+// < len(dst)/u and phase p, dst[j·u + p] = Σₜ ph[p][t]·re x[j+t] +
+// phq[p][t]·im x[j+t].
+func interpRealGo(dst []float32, x []complex64, ph, phq [][]float32) {
+	u := len(ph)
+	k := len(ph[0])
+	o := 0
+	for j := range len(dst) / u {
+		w := x[j : j+k]
+		for p, h := range ph {
+			h = h[:len(w)]
+			hq := phq[p][:len(w)]
+			var r, i float32
+			for t, v := range w {
+				r += h[t] * real(v)
+				i += hq[t] * imag(v)
+			}
+			dst[o] = r + i
+			o++
+		}
+	}
+}
+
 // run computes the outputs out of the inputs whose windows start at x.
 func (it *Interpolator) run(out, x []complex64) {
 	if it.kt != nil {

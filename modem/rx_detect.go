@@ -26,7 +26,6 @@ type ssbDetector struct {
 	osc  *Oscillator // the premix, at the work rate
 	run0 uint64      // its accumulator at input 0
 	zm   []complex64 // premixed input
-	z    []complex64 // interpolator output: (Re c·Re z′, −Im c·Im z′) pairs
 }
 
 // newSSBDetector returns the detector for the low-pass h (at the audio
@@ -61,13 +60,5 @@ func (d *ssbDetector) Reset() {
 // samples, dst[:u·len(src)] (reallocated when short), and returns it.
 func (d *ssbDetector) Process(dst []float32, src []complex64) []float32 {
 	d.zm = d.osc.Mix(d.zm, src)
-	d.z = d.it.Process(d.z, d.zm)
-	if cap(dst) < len(d.z) {
-		dst = make([]float32, len(d.z))
-	}
-	dst = dst[:len(d.z)]
-	for i, v := range d.z {
-		dst[i] = real(v) + imag(v)
-	}
-	return dst
+	return d.it.processReal(dst, d.zm)
 }

@@ -40,3 +40,40 @@ func TestSSBDetectorMatchesDemod(t *testing.T) {
 		}
 	}
 }
+
+func TestInterpRealKernelMatchesGo(t *testing.T) {
+	// interpRealAVX2 against its Go twin on random taps and samples, for
+	// four and eight phases and odd and even tap counts. Tolerance:
+	// float32 rounding of k multiply-adds (the kernel fuses them),
+	// 1e-5 (common practice).
+	if !haveKernels {
+		t.Skip("no AVX2/FMA kernels in this build")
+	}
+	const tol = 1e-5
+	r := gaussNoise(4000, 1, 9)
+	for _, u := range []int{4, 8, 12} {
+		for _, k := range []int{1, 10, 11} {
+			ph := make([][]float32, u)
+			phq := make([][]float32, u)
+			for p := range u {
+				ph[p] = make([]float32, k)
+				phq[p] = make([]float32, k)
+				for i := range k {
+					ph[p][i] = real(r[p*k+i])
+					phq[p][i] = imag(r[p*k+i])
+				}
+			}
+			x := gaussNoise(64+k, 1, uint64(u*k))
+			want := make([]float32, 64*u)
+			got := make([]float32, 64*u)
+			interpRealGo(want, x, ph, phq)
+			tp := newInterpTapsIQ(ph, phq, k)
+			interpRealAVX2(&got[0], &x[0], 64, &tp.taps[0], k, tp.full, u)
+			for i := range got {
+				if math.Abs(float64(got[i]-want[i])) > tol {
+					t.Fatalf("u=%d k=%d: output %d = %g, want %g", u, k, i, got[i], want[i])
+				}
+			}
+		}
+	}
+}
