@@ -87,7 +87,9 @@ func BenchmarkBankFold(b *testing.B) {
 // counts through each front end; the sinks discard the audio. With
 // -cpu 1 the time per operation is the CPU time: the planner rule
 // (bankMinChannels) is where the channeliser's column drops below the
-// per-channel one.
+// per-channel one. cpu-ms/op is the process's CPU time per operation
+// (user and system, getrusage), steadier than the wall time on a shared
+// machine.
 func BenchmarkReceiverFront(b *testing.B) {
 	const rate = 2.4e6
 	const n = 2 * rate
@@ -119,6 +121,10 @@ func BenchmarkReceiverFront(b *testing.B) {
 		for _, front := range []FrontEnd{FrontPerChannel, FrontChanneliser} {
 			b.Run(fmt.Sprintf("ch=%d/%v", nch, front), func(b *testing.B) {
 				b.SetBytes(int64(len(raw)))
+				if _, err := NewReceiverFront(cfgs, front); err != nil { // designs remembered
+					b.Fatal(err)
+				}
+				c0 := cpuSeconds()
 				for b.Loop() {
 					r, err := NewReceiverFront(cfgs, front)
 					if err != nil {
@@ -128,6 +134,7 @@ func BenchmarkReceiverFront(b *testing.B) {
 						b.Fatal(err)
 					}
 				}
+				b.ReportMetric((cpuSeconds()-c0)/float64(b.N)*1e3, "cpu-ms/op")
 			})
 		}
 	}

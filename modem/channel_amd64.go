@@ -54,9 +54,10 @@ func dotRealSymAVX2(dst *complex64, n int, x *complex64, step int, hd *float32, 
 //go:noescape
 func dotSym2x2AVX2(out *[2]*complex64, n int, x *complex64, step int, taps *float32, groups, hi int, q *[8]float64, rd *[16]float64)
 
-// interpRealAVX2 is interpRealGo for n inputs (a multiple of four) on the
-// transposed layout of interpTaps with u = 4·groups phases: four inputs a
-// pass, eight accumulators.
+// interpRealAVX2 is interpRealGo for n inputs on the transposed layout of
+// interpTaps (groups of four phases, the last of them partial when part =
+// 1, its u mod 4 outputs stored under mask): four inputs a pass, eight
+// accumulators, then the last n mod 4 one at a time.
 //
 //go:noescape
-func interpRealAVX2(dst *float32, x *complex64, n int, taps *float32, k, groups, u int)
+func interpRealAVX2(dst *float32, x *complex64, n int, taps *float32, k, groups, u, part int, mask *[4]int32)

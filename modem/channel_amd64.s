@@ -751,16 +751,31 @@ DATA interpEven<>+28(SB)/4, $7
 GLOBL interpEven<>(SB), RODATA|NOPTR, $32
 
 // IRSTORE sums the lane pairs of the accumulators A + B (four phases of
-// one input, (Re·Re, −Im·Im) each) into four float32 outputs at ADDR;
-// it uses Y13, Y14 and Y12 = interpEven.
+// one input, (Re·Re, −Im·Im) each) into four float32 outputs at ADDR,
+// those of the mask X15 (all four but in a last partial group); it uses
+// Y13, Y14 and Y12 = interpEven.
 #define IRSTORE(A, B, ADDR) \
-	VADDPS    B, A, Y13 \
-	VPERMILPS $0xB1, Y13, Y14 \
-	VADDPS    Y14, Y13, Y13 \
-	VPERMPS   Y13, Y12, Y13 \
-	VMOVUPS   X13, ADDR
+	VADDPS     B, A, Y13 \
+	VPERMILPS  $0xB1, Y13, Y14 \
+	VADDPS     Y14, Y13, Y13 \
+	VPERMPS    Y13, Y12, Y13 \
+	VMASKMOVPS X13, X15, ADDR
 
-// func interpRealAVX2(dst *float32, x *complex64, n int, taps *float32, k, groups, u int)
+// IRMASK sets X15 to the store mask of the group R12 counts down to:
+// all four phases, or the mask argument's in the last group when the
+// phases end in a partial one.
+#define IRMASK(L) \
+	VPCMPEQD X15, X15, X15 \
+	CMPQ     R12, $1 \
+	JNE      L \
+	MOVQ     part+56(FP), AX \
+	TESTQ    AX, AX \
+	JZ       L \
+	MOVQ     mask+64(FP), AX \
+	VMOVDQU  (AX), X15 \
+L:
+
+// func interpRealAVX2(dst *float32, x *complex64, n int, taps *float32, k, groups, u, part int, mask *[4]int32)
 //
 // interpAVX2 with real outputs, four inputs a pass: for each group of
 // four phases the tap rows t and t+1 are loaded once and feed the eight
@@ -768,8 +783,10 @@ GLOBL interpEven<>(SB), RODATA|NOPTR, $32
 // broadcast (VBROADCASTSD); then each input's pair of accumulators is
 // summed and its lanes added in pairs (the detector's Re c·Re z −
 // Im c·Im z) to four float32 outputs. Eight independent FMA chains keep
-// the loop from waiting on FMA latency (interpAVX2 has two).
-TEXT ·interpRealAVX2(SB), NOSPLIT, $0-56
+// the loop from waiting on FMA latency (interpAVX2 has two). The last n
+// mod 4 inputs go one at a time. groups counts a last partial group of
+// u mod 4 phases (part = 1), whose outputs are stored under mask.
+TEXT ·interpRealAVX2(SB), NOSPLIT, $0-72
 	MOVQ    dst+0(FP), DI
 	MOVQ    x+8(FP), SI
 	MOVQ    n+16(FP), CX
@@ -779,8 +796,8 @@ TEXT ·interpRealAVX2(SB), NOSPLIT, $0-56
 	MOVQ    u+48(FP), R11
 	SHLQ    $2, R11 // bytes of one input's outputs
 	VMOVDQU interpEven<>(SB), Y12
-	TESTQ   CX, CX
-	JZ      irdone
+	CMPQ    CX, $4
+	JL      irfour
 
 irouter:
 	MOVQ taps+24(FP), BX // group g's taps
@@ -788,6 +805,7 @@ irouter:
 	MOVQ groups+40(FP), R12
 
 irgroup:
+	IRMASK(irgmask)
 	VXORPS Y0, Y0, Y0
 	VXORPS Y1, Y1, Y1
 	VXORPS Y2, Y2, Y2
@@ -850,7 +868,56 @@ irsum:
 	ADDQ $32, SI       // four inputs on
 	LEAQ (DI)(R11*4), DI
 	SUBQ $4, CX
-	JG   irouter
+	CMPQ CX, $4
+	JGE  irouter
+
+irfour:
+	// the last n mod 4 inputs one at a time, two accumulators a group
+	TESTQ CX, CX
+	JLE   irdone
+
+irtail:
+	MOVQ taps+24(FP), BX
+	MOVQ DI, R14
+	MOVQ groups+40(FP), R12
+
+irtgroup:
+	IRMASK(irtmask)
+	VXORPS Y0, Y0, Y0
+	VXORPS Y4, Y4, Y4
+	MOVQ   BX, R8
+	XORQ   R13, R13
+	MOVQ   R9, R10
+	SUBQ   $1, R10
+
+irtpair:
+	CMPQ         R13, R10
+	JGE          irtone
+	VBROADCASTSD (SI)(R13*8), Y10
+	VBROADCASTSD 8(SI)(R13*8), Y11
+	VFMADD231PS  (R8), Y10, Y0
+	VFMADD231PS  (R8)(DX*1), Y11, Y4
+	LEAQ         (R8)(DX*2), R8
+	ADDQ         $2, R13
+	JMP          irtpair
+
+irtone:
+	CMPQ         R13, R9
+	JGE          irtsum
+	VBROADCASTSD (SI)(R13*8), Y10
+	VFMADD231PS  (R8), Y10, Y0
+
+irtsum:
+	IRSTORE(Y0, Y4, (R14))
+	ADDQ $32, BX
+	ADDQ $16, R14
+	DECQ R12
+	JNZ  irtgroup
+
+	ADDQ $8, SI
+	ADDQ R11, DI
+	DECQ CX
+	JNZ  irtail
 
 irdone:
 	VZEROUPPER

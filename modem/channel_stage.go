@@ -475,18 +475,25 @@ func (it *Interpolator) processReal(dst []float32, src []complex64) []float32 {
 	return dst
 }
 
-// runReal is run for processReal: whole groups of four inputs by the
-// kernel when the phases fill whole groups of four, the rest in Go.
+// interpRealMasks[r] selects the first r of four float32 outputs, for
+// interpRealAVX2's last partial group of phases.
+var interpRealMasks = [4][4]int32{{}, {-1}, {-1, -1}, {-1, -1, -1}}
+
+// runReal is run for processReal.
 func (it *Interpolator) runReal(out []float32, x []complex64) {
 	n := len(out) / it.u
-	done := 0
-	if it.kt != nil && it.kt.part == 0 && n >= 4 {
-		done = n &^ 3
-		interpRealAVX2(&out[0], &x[0], done, &it.kt.taps[0], it.k, it.kt.full, it.u)
+	if n == 0 {
+		return
 	}
-	if done < n {
-		interpRealGo(out[done*it.u:], x[done:], it.ph, it.phq)
+	if it.kt != nil {
+		if len(x) < n+it.k-1 {
+			panic("modem: interpolation kernel size mismatch")
+		}
+		t := it.kt
+		interpRealAVX2(&out[0], &x[0], n, &t.taps[0], it.k, t.full+t.part, it.u, t.part, &interpRealMasks[it.u%4])
+		return
 	}
+	interpRealGo(out, x, it.ph, it.phq)
 }
 
 // interpRealGo is the reference loop of interpRealAVX2: for each input j

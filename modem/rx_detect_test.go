@@ -51,7 +51,7 @@ func TestInterpRealKernelMatchesGo(t *testing.T) {
 	}
 	const tol = 1e-5
 	r := gaussNoise(4000, 1, 9)
-	for _, u := range []int{4, 8, 12} {
+	for _, u := range []int{4, 6, 8, 12, 5, 3} {
 		for _, k := range []int{1, 10, 11} {
 			ph := make([][]float32, u)
 			phq := make([][]float32, u)
@@ -63,15 +63,20 @@ func TestInterpRealKernelMatchesGo(t *testing.T) {
 					phq[p][i] = imag(r[p*k+i])
 				}
 			}
-			x := gaussNoise(64+k, 1, uint64(u*k))
-			want := make([]float32, 64*u)
-			got := make([]float32, 64*u)
-			interpRealGo(want, x, ph, phq)
-			tp := newInterpTapsIQ(ph, phq, k)
-			interpRealAVX2(&got[0], &x[0], 64, &tp.taps[0], k, tp.full, u)
-			for i := range got {
-				if math.Abs(float64(got[i]-want[i])) > tol {
-					t.Fatalf("u=%d k=%d: output %d = %g, want %g", u, k, i, got[i], want[i])
+			for _, n := range []int{1, 3, 64, 67} {
+				x := gaussNoise(n+k, 1, uint64(u*k))
+				want := make([]float32, n*u)
+				got := make([]float32, n*u+1) // one past, which must stay untouched
+				interpRealGo(want, x, ph, phq)
+				tp := newInterpTapsIQ(ph, phq, k)
+				interpRealAVX2(&got[0], &x[0], n, &tp.taps[0], k, tp.full+tp.part, u, tp.part, &interpRealMasks[u%4])
+				for i := range want {
+					if math.Abs(float64(got[i]-want[i])) > tol {
+						t.Fatalf("u=%d k=%d n=%d: output %d = %g, want %g", u, k, n, i, got[i], want[i])
+					}
+				}
+				if got[n*u] != 0 {
+					t.Fatalf("u=%d k=%d n=%d: wrote past the end", u, k, n)
 				}
 			}
 		}
