@@ -86,7 +86,7 @@ func BenchmarkBankFold(b *testing.B) {
 // MS/s cu8-coded capture (RunRaw, the command's path) for several channel
 // counts through each front end; the sinks discard the audio. With
 // -cpu 1 the time per operation is the CPU time: the planner rule
-// (bankMinChannels) is where the channeliser's column drops below the
+// (ChanneliserMinChannels) is where the channeliser's column drops below the
 // per-channel one. cpu-ms/op is the process's CPU time per operation
 // (user and system, getrusage), steadier than the wall time on a shared
 // machine.
@@ -108,7 +108,7 @@ func BenchmarkReceiverFront(b *testing.B) {
 			dst[i] = complex(lut[b[2*i]], lut[b[2*i+1]])
 		}
 	}
-	for _, nch := range []int{1, 4, 8, 16, 32, 64, 128} {
+	for _, nch := range []int{1, 2, 4, 6, 8, 12, 16, 32, 64, 128} {
 		cfgs := make([]RxConfig, nch)
 		step := 2.3e6 / float64(nch)
 		for i := range cfgs {
@@ -137,5 +137,52 @@ func BenchmarkReceiverFront(b *testing.B) {
 				b.ReportMetric((cpuSeconds()-c0)/float64(b.N)*1e3, "cpu-ms/op")
 			})
 		}
+	}
+}
+
+// BenchmarkReceiverBankPlans times 32 channels through Channelisers of
+// several designs (M sub-bands, decimation D), to check planBank's
+// choice against measured CPU time.
+func BenchmarkReceiverBankPlans(b *testing.B) {
+	const rate = 2.4e6
+	const n = 2 * rate
+	x := testCapture(n)
+	const nch = 32
+	cfgs := make([]RxConfig, nch)
+	step := 2.3e6 / float64(nch)
+	for i := range cfgs {
+		cfgs[i] = RxConfig{Rate: rate, Offset: math.Round(-1.15e6 + step*(float64(i)+0.5))}
+	}
+	sinks := make([]func([]float32) error, nch)
+	for i := range sinks {
+		sinks[i] = func([]float32) error { return nil }
+	}
+	full := make([]RxConfig, nch)
+	for i, c := range cfgs {
+		full[i], _ = c.withDefaults()
+	}
+	auto, _ := planBank(full)
+	defer func() { testBankPlan = nil }()
+	for _, p := range []bankPlan{{m: 32, d: 16}, {m: 64, d: 25}, {m: 64, d: 32}, {m: 128, d: 50}, {m: 128, d: 60}, {m: 256, d: 100}, {m: 256, d: 125}, {m: 512, d: 200}} {
+		p.pass = rate/float64(2*p.m) + 1425
+		name := fmt.Sprintf("M=%d/D=%d", p.m, p.d)
+		if p.m == auto.m && p.d == auto.d {
+			name += "/planned"
+		}
+		b.Run(name, func(b *testing.B) {
+			testBankPlan = &p
+			r, err := NewReceiverFront(cfgs, FrontChanneliser)
+			if err != nil {
+				b.Skip(err)
+			}
+			c0 := cpuSeconds()
+			for b.Loop() {
+				r, _ = NewReceiverFront(cfgs, FrontChanneliser)
+				if err := r.Run(&sliceReader{x, 1 << 16}, sinks); err != nil {
+					b.Fatal(err)
+				}
+			}
+			b.ReportMetric((cpuSeconds()-c0)/float64(b.N)*1e3, "cpu-ms/op")
+		})
 	}
 }

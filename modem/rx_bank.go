@@ -31,10 +31,13 @@ func (f FrontEnd) String() string {
 	return "auto"
 }
 
-// Planner rule (measured, see bench/README.md): a Channeliser costs about
-// as much as bankMinChannels per-channel first stages, so the receiver
-// uses one from that many channels on.
-const bankMinChannels = 8
+// ChanneliserMinChannels is the planner rule of NewReceiver: from this
+// many channels on the receiver splits the capture with a Channeliser.
+// Measured (BenchmarkReceiverFront, 2.4 MS/s, USB channels; the table in
+// DEVELOPERS.md): the two front ends cost the same CPU time at 12
+// channels; with 8 a receiver of per-channel first stages is 10–15 %
+// cheaper, with 16 the channeliser 25–30 %.
+const ChanneliserMinChannels = 12
 
 // bankMinBands is the fewest sub-bands worth a Channeliser: with fewer
 // the sub-band rate is near the capture rate and the channels' own
@@ -43,6 +46,9 @@ const bankMinBands = 16
 
 // maxRxBankBands bounds the receiver's Channeliser.
 const maxRxBankBands = 2048
+
+// testBankPlan, when set (by benchmarks), replaces planBank's choice.
+var testBankPlan *bankPlan
 
 // bankPlan is a Channeliser design for a receiver.
 type bankPlan struct {

@@ -146,7 +146,7 @@ func TestReceiverChanneliserMatchesChannel(t *testing.T) {
 }
 
 func TestReceiverPlanner(t *testing.T) {
-	// The planner rule: a Channeliser from bankMinChannels channels on,
+	// The planner rule: a Channeliser from ChanneliserMinChannels channels on,
 	// when one fits; a few channels keep their own first stages.
 	mk := func(n int, rate float64) []RxConfig {
 		cfgs := make([]RxConfig, n)
@@ -159,7 +159,7 @@ func TestReceiverPlanner(t *testing.T) {
 		n    int
 		rate float64
 		bank bool
-	}{{1, 2.4e6, false}, {bankMinChannels - 1, 2.4e6, false}, {bankMinChannels, 2.4e6, true}, {64, 2.4e6, true}, {64, 2.048e6, true}} {
+	}{{1, 2.4e6, false}, {ChanneliserMinChannels - 1, 2.4e6, false}, {ChanneliserMinChannels, 2.4e6, true}, {64, 2.4e6, true}, {64, 2.048e6, true}} {
 		r, err := NewReceiver(mk(tc.n, tc.rate))
 		if err != nil {
 			t.Fatal(err)
@@ -278,7 +278,7 @@ func TestChanneliserSNR(t *testing.T) {
 	// and the straddling channel as well as the centred one.
 	const tolDB = 0.2
 	const rate = 2.4e6
-	cfgs := make([]RxConfig, bankMinChannels) // enough channels for a bank
+	cfgs := make([]RxConfig, ChanneliserMinChannels) // enough channels for a bank
 	for i := range cfgs {
 		cfgs[i] = RxConfig{Rate: rate, Offset: float64(i) * 50e3}
 	}

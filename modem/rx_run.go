@@ -46,7 +46,7 @@ func NewReceiver(cfgs []RxConfig) (*Receiver, error) {
 
 // NewReceiverFront returns a receiver for the channels cfgs with the
 // given front end. FrontAuto uses a Channeliser when there are at least
-// eight channels (bankMinChannels, the measured break-even) of one
+// ChanneliserMinChannels channels (the measured break-even) of one
 // capture rate and rejection and a bank of at least 16 sub-bands fits
 // the widest of them (planBank); otherwise every channel has its own
 // first stage. FrontChanneliser reports an error when no bank fits.
@@ -64,7 +64,10 @@ func NewReceiverFront(cfgs []RxConfig, front FrontEnd) (*Receiver, error) {
 	}
 	r := &Receiver{}
 	bp, ok := planBank(full)
-	useBank := front == FrontChanneliser || (front == FrontAuto && ok && len(cfgs) >= bankMinChannels)
+	if testBankPlan != nil {
+		bp, ok = *testBankPlan, true
+	}
+	useBank := front == FrontChanneliser || (front == FrontAuto && ok && len(cfgs) >= ChanneliserMinChannels)
 	if useBank {
 		if !ok {
 			return nil, errors.New("modem: no channeliser fits these channels (rates, rejections or widths differ, or the capture is too narrow)")

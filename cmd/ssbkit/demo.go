@@ -13,6 +13,7 @@ import (
 	"time"
 
 	"ssbkit/iq"
+	"ssbkit/modem"
 	"ssbkit/samples"
 )
 
@@ -458,9 +459,9 @@ func (d *demo) summary(truth demoTruthFile, info *demoStep, signals []detected, 
 	}
 	if n := len(wavs); n > 0 {
 		// the receiver's planner rule (modem.NewReceiverFront)
-		how := "each with its own first stage (a channeliser splits the capture once from 8 channels on)"
-		if n >= 8 {
-			how = "through one channeliser, a polyphase filter bank that splits the capture once (used from 8 channels on)"
+		how := fmt.Sprintf("each with its own first stage (a channeliser splits the capture once from %d channels on)", modem.ChanneliserMinChannels)
+		if n >= modem.ChanneliserMinChannels {
+			how = fmt.Sprintf("through one channeliser, a polyphase filter bank that splits the capture once (used from %d channels on)", modem.ChanneliserMinChannels)
 		}
 		w("\n`ssbkit rx` decoded the %d voice signals in one pass, %s.\n", n, how)
 	}

@@ -43,7 +43,7 @@ decode them. Signals of unknown kind (a few discrete lines, such as
 test tones, whose sideband the spectrum cannot tell) are skipped with a
 warning; tune them with --offset HZ:usb or HZ:lsb.
 
-With 8 channels or more (--auto on a busy band, say) the capture is split
+With 12 channels or more (--auto on a busy band, say) the capture is split
 once by a channeliser, a polyphase filter bank, and each channel decoded
 from its nearest sub-band, at a fraction of the cost of giving every
 channel its own first stage; the audio is the same to within the

@@ -15,7 +15,7 @@ import (
 
 func TestRxManyChannels(t *testing.T) {
 	// Twelve channels in one pass go through the channeliser (the
-	// planner rule: from 8 channels on) and keep the unity convention of
+	// planner rule: from 12 channels on) and keep the unity convention of
 	// DESIGN.md (rx): a usb tone of magnitude a at +f gives audio of
 	// amplitude a at f, ±0.1 dB (issue 5), each WAV as long as the
 	// capture.
@@ -56,8 +56,8 @@ func TestRxManyChannels(t *testing.T) {
 }
 
 func TestRxAutoBusyBand(t *testing.T) {
-	// rx --auto on a busy band (nine voice signals, usb and lsb, made by
-	// the modulator) decodes every one through the channeliser, each
+	// rx --auto on a busy band (twelve voice signals, usb and lsb, made
+	// by the modulator) decodes every one through the channeliser, each
 	// tuned within 200 Hz of its carrier (issue 6).
 	const (
 		rate   = 240000.0
@@ -72,8 +72,8 @@ func TestRxAutoBusyBand(t *testing.T) {
 		x[i] = complex(float32(sd*r.NormFloat64()), float32(sd*r.NormFloat64()))
 	}
 	var truth []float64
-	for i := range 9 {
-		mode, off := "usb", -100e3+25e3*float64(i)
+	for i := range 12 {
+		mode, off := "usb", -110e3+19e3*float64(i)
 		if i%2 == 1 {
 			mode = "lsb"
 		}
@@ -93,8 +93,8 @@ func TestRxAutoBusyBand(t *testing.T) {
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
-	if !strings.Contains(errs, "9 channels through one channeliser") {
-		t.Errorf("the channeliser is not reported for 9 channels:\n%s", errs)
+	if !strings.Contains(errs, "12 channels through one channeliser") {
+		t.Errorf("the channeliser is not reported for 12 channels:\n%s", errs)
 	}
 	files, _ := filepath.Glob(filepath.Join(filepath.Dir(in), "auto_*.wav"))
 	if len(files) != len(truth) {
