@@ -91,7 +91,7 @@ func NewShiftDecimator(taps []float64, d, phase int, freq, rate float64) *ShiftD
 			s.st = newSymTaps(s.pa, s.pb, s.hc, l)
 		}
 	}
-	s.buf = make([]complex64, l-1, l-1+stageChunk)
+	s.buf = make([]complex64, l-1, 2*(l-1))
 	return s
 }
 
@@ -114,20 +114,31 @@ func (s *ShiftDecimator) MaxOut(n int) int { return n/s.d + 1 }
 
 // Process decimates src and appends the outputs to dst[:0], returning it.
 // dst is reallocated when its capacity is below MaxOut(len(src)); it must
-// not overlap src.
+// not overlap src. As in Decimator.Process, only the outputs whose window
+// reaches into the history read a copy (the history then the first L−1
+// inputs); the others read src in place.
 func (s *ShiftDecimator) Process(dst, src []complex64) []complex64 {
 	if cap(dst) < s.MaxOut(len(src)) {
 		dst = make([]complex64, 0, s.MaxOut(len(src)))
 	}
 	dst = dst[:0]
-	for len(src) > 0 {
-		c := min(stageChunk, len(src))
-		s.buf = append(s.buf[:s.l-1], src[:c]...)
-		dst = s.Block(dst, s.buf, s.pos)
-		s.pos += int64(c)
-		copy(s.buf, s.buf[c:])
-		src = src[c:]
+	l, n := s.l, len(src)
+	if n == 0 {
+		return dst
 	}
+	hd := min(l-1, n)
+	head := append(s.buf[:l-1], src[:hd]...)
+	dst = s.Block(dst, head, s.pos) // outputs at pos … pos+hd−1
+	if n > hd {
+		dst = s.Block(dst, src, s.pos+int64(l-1)) // outputs at pos+L−1 … pos+n−1
+	}
+	if n >= l-1 {
+		copy(s.buf[:l-1], src[n-(l-1):])
+	} else {
+		copy(s.buf[:l-1], head[n:])
+	}
+	s.buf = s.buf[:l-1]
+	s.pos += int64(n)
 	return dst
 }
 
