@@ -308,3 +308,26 @@ func TestChanneliserSNR(t *testing.T) {
 		t.Errorf("straddling channel: %.3f dB worse than the centred one", -d)
 	}
 }
+
+func TestChanneliserChainAllocs(t *testing.T) {
+	// A chain after a Channeliser allocates nothing per block in the
+	// steady state (DEVELOPERS.md), as Channel.Process on a capture.
+	cfgs := make([]RxConfig, ChanneliserMinChannels)
+	for i := range cfgs {
+		cfgs[i], _ = RxConfig{Rate: 2.4e6, Offset: float64(i) * 30e3, AGC: AGCMedium}.withDefaults()
+	}
+	p, ok := planBank(cfgs)
+	if !ok {
+		t.Fatal("no channeliser planned")
+	}
+	bank, bands, chans, err := bankChains(cfgs, p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sub := bank.Process(nil, bands[:1], testCapture(1<<15))[0]
+	c := chans[0]
+	buf := c.Process(nil, sub)
+	if n := testing.AllocsPerRun(20, func() { buf = c.Process(buf, sub) }); n != 0 {
+		t.Errorf("%v allocations per block, want 0", n)
+	}
+}
