@@ -1,6 +1,7 @@
 //go:build amd64 && !purego
 
 #include "textflag.h"
+#include "kernels_amd64.h"
 
 // The Channeliser's AVX2/FMA kernels (bank_amd64.go). A register holds
 // four complex64 (re, im, re, im, …); in the transforms each lane is one
@@ -69,14 +70,7 @@ TEXT ·bankFoldAVX2(SB), NOSPLIT, $0-56
 fold:
 	CMPQ   BX, R9
 	JGE    folddone
-	VXORPS Y0, Y0, Y0
-	VXORPS Y1, Y1, Y1
-	VXORPS Y2, Y2, Y2
-	VXORPS Y3, Y3, Y3
-	VXORPS Y4, Y4, Y4
-	VXORPS Y5, Y5, Y5
-	VXORPS Y6, Y6, Y6
-	VXORPS Y7, Y7, Y7
+	ZERO8
 	LEAQ   (SI)(BX*1), AX   // samples
 	LEAQ   (R8)(BX*1), R10  // taps of lane 0 (lane 1 at +DX)
 	LEAQ   (R10)(DX*2), R11 // taps of lane 2 (lane 3 at +DX)

@@ -114,10 +114,7 @@ func BenchmarkReceiverFront(b *testing.B) {
 		for i := range cfgs {
 			cfgs[i] = RxConfig{Rate: rate, Offset: math.Round(-1.15e6 + step*(float64(i)+0.5))}
 		}
-		sinks := make([]func([]float32) error, nch)
-		for i := range sinks {
-			sinks[i] = func([]float32) error { return nil }
-		}
+		sinks := discard(nch)
 		for _, front := range []FrontEnd{FrontPerChannel, FrontChanneliser} {
 			b.Run(fmt.Sprintf("ch=%d/%v", nch, front), func(b *testing.B) {
 				b.SetBytes(int64(len(raw)))
@@ -153,10 +150,7 @@ func BenchmarkReceiverBankPlans(b *testing.B) {
 	for i := range cfgs {
 		cfgs[i] = RxConfig{Rate: rate, Offset: math.Round(-1.15e6 + step*(float64(i)+0.5))}
 	}
-	sinks := make([]func([]float32) error, nch)
-	for i := range sinks {
-		sinks[i] = func([]float32) error { return nil }
-	}
+	sinks := discard(nch)
 	full := make([]RxConfig, nch)
 	for i, c := range cfgs {
 		full[i], _ = c.withDefaults()

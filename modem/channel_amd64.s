@@ -1,6 +1,7 @@
 //go:build amd64 && !purego
 
 #include "textflag.h"
+#include "kernels_amd64.h"
 
 // The AVX2/FMA kernels of channel_amd64.go. Their pure-Go twins,
 // dotComplexGo and dotRealGo in channel_kernel.go, are the reference
@@ -328,17 +329,6 @@ idone:
 	VADDPS       Y5, Y4, Y4; \
 	VEXTRACTF128 $1, Y4, X5; \
 	VUNPCKLPD    X5, X4, X4
-
-// ZERO8 clears the accumulators Y0…Y7.
-#define ZERO8 \
-	VXORPS Y0, Y0, Y0; \
-	VXORPS Y1, Y1, Y1; \
-	VXORPS Y2, Y2, Y2; \
-	VXORPS Y3, Y3, Y3; \
-	VXORPS Y4, Y4, Y4; \
-	VXORPS Y5, Y5, Y5; \
-	VXORPS Y6, Y6, Y6; \
-	VXORPS Y7, Y7, Y7
 
 // SUMS4 turns the four lanes' accumulators (A, B) = (Y0, Y1), (Y2, Y3),
 // (Y4, Y5), (Y6, Y7) into C = (A.re − B.im, A.im + B.re), then sums each
@@ -806,14 +796,7 @@ irouter:
 
 irgroup:
 	IRMASK(irgmask)
-	VXORPS Y0, Y0, Y0
-	VXORPS Y1, Y1, Y1
-	VXORPS Y2, Y2, Y2
-	VXORPS Y3, Y3, Y3
-	VXORPS Y4, Y4, Y4
-	VXORPS Y5, Y5, Y5
-	VXORPS Y6, Y6, Y6
-	VXORPS Y7, Y7, Y7
+	ZERO8
 	MOVQ   BX, R8
 	XORQ   R13, R13
 	MOVQ   R9, R10

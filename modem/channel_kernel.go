@@ -173,10 +173,18 @@ func interpGo(dst, x []complex64, ph [][]float32) { interpIQGo(dst, x, ph, ph) }
 // interpIQGo is interpGo with the taps phq for the imaginary parts:
 // dst[j·u + p] = Σₜ ph[p][t]·re x[j+t] + j·Σₜ phq[p][t]·im x[j+t].
 func interpIQGo(dst, x []complex64, ph, phq [][]float32) {
+	interpSums(len(dst), x, ph, phq, func(o int, r, i float32) { dst[o] = complex(r, i) })
+}
+
+// interpSums computes, for the n/u inputs j whose windows start at x[j]
+// and each phase p, the sums r = Σₜ ph[p][t]·re x[j+t] and i = Σₜ
+// phq[p][t]·im x[j+t] of output o = j·u + p, and hands them to out (the
+// Go twins of the interpolation kernels differ only in what they store).
+func interpSums(n int, x []complex64, ph, phq [][]float32, out func(o int, r, i float32)) {
 	u := len(ph)
 	k := len(ph[0])
 	o := 0
-	for j := range len(dst) / u {
+	for j := range n / u {
 		w := x[j : j+k]
 		for p, h := range ph {
 			h = h[:len(w)]
@@ -186,7 +194,7 @@ func interpIQGo(dst, x []complex64, ph, phq [][]float32) {
 				r += h[t] * real(v)
 				i += hq[t] * imag(v)
 			}
-			dst[o] = complex(r, i)
+			out(o, r, i)
 			o++
 		}
 	}

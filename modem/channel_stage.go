@@ -447,19 +447,26 @@ func (it *Interpolator) Process(dst, src []complex64) []complex64 {
 		dst = make([]complex64, n*it.u)
 	}
 	dst = dst[:n*it.u]
-	k := it.k
+	it.windows(src, func(from, to int, x []complex64) { it.run(dst[from*it.u:to*it.u], x) })
+	return dst
+}
+
+// windows calls run for the inputs from … to−1 of src whose windows start
+// at x: the first K−1 in a copy after the history, the rest in src
+// itself; then keeps the last K−1 inputs as the history.
+func (it *Interpolator) windows(src []complex64, run func(from, to int, x []complex64)) {
+	n, k := len(src), it.k
 	hd := min(k-1, n)
 	head := append(it.buf[:k-1], src[:hd]...)
-	it.run(dst[:hd*it.u], head)
+	run(0, hd, head)
 	if n > hd { // inputs i ≥ K−1: windows src[i−K+1 : i+1]
-		it.run(dst[hd*it.u:], src)
+		run(hd, n, src)
 	}
 	if n >= k-1 {
 		copy(it.buf[:k-1], src[n-(k-1):])
 	} else {
 		copy(it.buf[:k-1], head[n:])
 	}
-	return dst
 }
 
 // processReal is Process with the two parts of each output summed,
@@ -471,18 +478,7 @@ func (it *Interpolator) processReal(dst []float32, src []complex64) []float32 {
 		dst = make([]float32, n*it.u)
 	}
 	dst = dst[:n*it.u]
-	k := it.k
-	hd := min(k-1, n)
-	head := append(it.buf[:k-1], src[:hd]...)
-	it.runReal(dst[:hd*it.u], head)
-	if n > hd {
-		it.runReal(dst[hd*it.u:], src)
-	}
-	if n >= k-1 {
-		copy(it.buf[:k-1], src[n-(k-1):])
-	} else {
-		copy(it.buf[:k-1], head[n:])
-	}
+	it.windows(src, func(from, to int, x []complex64) { it.runReal(dst[from*it.u:to*it.u], x) })
 	return dst
 }
 
@@ -511,23 +507,7 @@ func (it *Interpolator) runReal(out []float32, x []complex64) {
 // < len(dst)/u and phase p, dst[j·u + p] = Σₜ ph[p][t]·re x[j+t] +
 // phq[p][t]·im x[j+t].
 func interpRealGo(dst []float32, x []complex64, ph, phq [][]float32) {
-	u := len(ph)
-	k := len(ph[0])
-	o := 0
-	for j := range len(dst) / u {
-		w := x[j : j+k]
-		for p, h := range ph {
-			h = h[:len(w)]
-			hq := phq[p][:len(w)]
-			var r, i float32
-			for t, v := range w {
-				r += h[t] * real(v)
-				i += hq[t] * imag(v)
-			}
-			dst[o] = r + i
-			o++
-		}
-	}
+	interpSums(len(dst), x, ph, phq, func(o int, r, i float32) { dst[o] = r + i })
 }
 
 // run computes the outputs out of the inputs whose windows start at x.

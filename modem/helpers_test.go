@@ -1,6 +1,10 @@
 package modem
 
-import "math/rand/v2"
+import (
+	"encoding/binary"
+	"math"
+	"math/rand/v2"
+)
 
 // testSignal returns n seeded complex Gaussian samples of unit variance
 // per part.
@@ -32,4 +36,40 @@ func itoa(n int) string {
 		b = append([]byte{byte('0' + n%10)}, b...)
 	}
 	return string(b)
+}
+
+// cf32Bytes encodes x as little-endian float32 pairs, for RunRaw.
+func cf32Bytes(x []complex64) []byte {
+	b := make([]byte, 8*len(x))
+	for i, v := range x {
+		binary.LittleEndian.PutUint32(b[8*i:], math.Float32bits(real(v)))
+		binary.LittleEndian.PutUint32(b[8*i+4:], math.Float32bits(imag(v)))
+	}
+	return b
+}
+
+// decodeCF32 is RunRaw's decoder of cf32Bytes.
+func decodeCF32(dst []complex64, b []byte) {
+	for i := range dst {
+		dst[i] = complex(math.Float32frombits(binary.LittleEndian.Uint32(b[8*i:])), math.Float32frombits(binary.LittleEndian.Uint32(b[8*i+4:])))
+	}
+}
+
+// collect returns n sinks appending to got[i], and got.
+func collect(n int) ([]func([]float32) error, [][]float32) {
+	got := make([][]float32, n)
+	sinks := make([]func([]float32) error, n)
+	for i := range sinks {
+		sinks[i] = func(a []float32) error { got[i] = append(got[i], a...); return nil }
+	}
+	return sinks, got
+}
+
+// discard returns n sinks that drop the audio.
+func discard(n int) []func([]float32) error {
+	sinks := make([]func([]float32) error, n)
+	for i := range sinks {
+		sinks[i] = func([]float32) error { return nil }
+	}
+	return sinks
 }

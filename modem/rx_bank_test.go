@@ -2,7 +2,6 @@ package modem
 
 import (
 	"bytes"
-	"encoding/binary"
 	"math"
 	"math/cmplx"
 	"testing"
@@ -40,11 +39,7 @@ func receive(t testing.TB, front FrontEnd, cfgs []RxConfig, src []complex64) ([]
 	if front == FrontChanneliser && r.Channeliser() == nil {
 		t.Fatal("no channeliser")
 	}
-	got := make([][]float32, len(cfgs))
-	sinks := make([]func([]float32) error, len(cfgs))
-	for i := range sinks {
-		sinks[i] = func(a []float32) error { got[i] = append(got[i], a...); return nil }
-	}
+	sinks, got := collect(len(cfgs))
 	if err := r.Run(&sliceReader{src, 1 << 16}, sinks); err != nil {
 		t.Fatal(err)
 	}
@@ -110,35 +105,18 @@ func TestReceiverChanneliserMatchesChannel(t *testing.T) {
 	for _, tc := range []struct{ block, workers, read int }{{1000, 3, 777}, {4096, 1, 5000}, {65536, 2, 1 << 20}} {
 		r, _ := NewReceiverFront(cfgs, FrontChanneliser)
 		r.Block, r.Workers = tc.block, tc.workers
-		got := make([][]float32, len(cfgs))
-		sinks := make([]func([]float32) error, len(cfgs))
-		for i := range sinks {
-			sinks[i] = func(a []float32) error { got[i] = append(got[i], a...); return nil }
-		}
+		sinks, got := collect(len(cfgs))
 		if err := r.Run(&sliceReader{x, tc.read}, sinks); err != nil {
 			t.Fatal(err)
 		}
 		check("block", got)
 	}
-	bs := make([]byte, 8*len(x))
-	for i, v := range x {
-		binary.LittleEndian.PutUint32(bs[8*i:], math.Float32bits(real(v)))
-		binary.LittleEndian.PutUint32(bs[8*i+4:], math.Float32bits(imag(v)))
-	}
-	dec := func(dst []complex64, b []byte) {
-		for i := range dst {
-			dst[i] = complex(math.Float32frombits(binary.LittleEndian.Uint32(b[8*i:])), math.Float32frombits(binary.LittleEndian.Uint32(b[8*i+4:])))
-		}
-	}
+	bs := cf32Bytes(x)
 	for _, block := range []int{3000, 0} {
 		r, _ := NewReceiverFront(cfgs, FrontChanneliser)
 		r.Block = block
-		got := make([][]float32, len(cfgs))
-		sinks := make([]func([]float32) error, len(cfgs))
-		for i := range sinks {
-			sinks[i] = func(a []float32) error { got[i] = append(got[i], a...); return nil }
-		}
-		if err := r.RunRaw(bytes.NewReader(bs), 8, dec, sinks); err != nil {
+		sinks, got := collect(len(cfgs))
+		if err := r.RunRaw(bytes.NewReader(bs), 8, decodeCF32, sinks); err != nil {
 			t.Fatal(err)
 		}
 		check("raw", got)

@@ -2,7 +2,6 @@ package modem
 
 import (
 	"bytes"
-	"encoding/binary"
 	"errors"
 	"io"
 	"math"
@@ -423,16 +422,8 @@ func TestReceiverMatchesChannel(t *testing.T) {
 		}
 	}
 	// RunRaw: 8-byte float32 pairs decoded on the workers.
-	b := make([]byte, 8*len(x))
-	for i, v := range x {
-		binary.LittleEndian.PutUint32(b[8*i:], math.Float32bits(real(v)))
-		binary.LittleEndian.PutUint32(b[8*i+4:], math.Float32bits(imag(v)))
-	}
-	dec := func(dst []complex64, b []byte) {
-		for i := range dst {
-			dst[i] = complex(math.Float32frombits(binary.LittleEndian.Uint32(b[8*i:])), math.Float32frombits(binary.LittleEndian.Uint32(b[8*i+4:])))
-		}
-	}
+	b := cf32Bytes(x)
+	dec := decodeCF32
 	for _, block := range []int{3000, 65536} {
 		r, _ := NewReceiver(cfgs)
 		r.Block = block
