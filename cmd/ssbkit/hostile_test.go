@@ -328,6 +328,8 @@ func hostileCases() []hostileCase {
 			args: []string{"measure", "x.cf32", "--rate", "48k", "--resolution", "1e-6"}, exit: 1, names: "x.cf32", why: "use a resolution of"},
 		{group: "flags", what: "rx --bandwidth absurd", files: capture,
 			args: []string{"rx", "x.cf32", "--rate", "48k", "--bandwidth", "1e12", "-o", "a.wav"}, exit: 2, names: "1e+12 Hz", why: "cannot carry"},
+		{group: "flags", what: "rx --bandwidth of a hundredth of a hertz", files: capture,
+			args: []string{"rx", "x.cf32", "--rate", "48k", "--mode", "am", "--bandwidth", "0.01", "-o", "a.wav"}, exit: 2, names: "--bandwidth 0.01", why: "at least 100 Hz"},
 		{group: "flags", what: "rx --audio-rate absurd", files: capture,
 			args: []string{"rx", "x.cf32", "--rate", "48k", "--audio-rate", "1G", "-o", "a.wav"}, exit: 2, names: "--audio-rate", why: "8k to 384k"},
 		{group: "flags", what: "tx --center NaN",
