@@ -1,6 +1,7 @@
 package main
 
 import (
+	"cmp"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -144,20 +145,19 @@ func runMeasure(e *env, args []string) error {
 	}
 	imb := stats.Imbalance()
 
+	// The picture is committed with the report, so that a failure
+	// writing either leaves neither.
+	var plot *outFile
 	if *plotTo != "" {
-		f, err := createOutput(*plotTo, *force, in)
-		if err != nil {
+		if plot, err = createOutput(*plotTo, *force, in); err != nil {
 			return err
 		}
-		defer f.Abort()
-		if err := writeMeasurePNG(f, filepath.Base(in), r, 1000, 600); err != nil {
+		defer plot.Abort()
+		if err := writeMeasurePNG(plot, filepath.Base(in), r, 1000, 600); err != nil {
 			return fmt.Errorf("%s: %w", *plotTo, err)
 		}
-		if err := f.Commit(); err != nil {
-			return err
-		}
 	}
-	w := e.stdout
+	w, report := e.stdout, "standard output"
 	var of *outFile
 	if *out != "" && *out != "-" {
 		of, err = createOutput(*out, *force, in)
@@ -165,8 +165,10 @@ func runMeasure(e *env, args []string) error {
 			return err
 		}
 		defer of.Abort()
-		w = of
+		w, report = of, *out
 	}
+	sw := &stickyWriter{w: w}
+	w = sw
 	switch {
 	case noSignal && *asJSON:
 		err = writeNoSignalJSON(w, meta, opt, imb)
@@ -177,11 +179,16 @@ func runMeasure(e *env, args []string) error {
 	default:
 		err = writeMeasureText(w, in, meta, r, imb)
 	}
-	if err != nil {
-		return err
+	if err := cmp.Or(sw.err, err); err != nil {
+		return fmt.Errorf("%s: %w", report, err)
 	}
 	if of != nil {
-		return of.Commit()
+		if err := of.Commit(); err != nil {
+			return err
+		}
+	}
+	if plot != nil {
+		return plot.Commit()
 	}
 	return nil
 }
