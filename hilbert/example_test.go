@@ -56,3 +56,32 @@ func ExampleSections() {
 	// Q [0.4805] (after one sample of delay)
 	// 47.0 dB
 }
+
+// An analog phasing network of six op-amp all-pass sections for
+// 300–2700 Hz audio: the pole frequencies of each path and the ideal
+// suppression.
+func ExampleNewAnalog() {
+	a, err := hilbert.NewAnalog(6, 300, 2700)
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	fmt.Printf("I poles %.1f Hz\nQ poles %.1f Hz\n", a.I, a.Q)
+	r := a.Analyze(300, 2700)
+	fmt.Printf("min %.1f dB, delay %.3f ms at the band centre\n", r.SuppressionMinDB, r.DelayMS)
+	// Output:
+	// I poles [307.8 1257.9 8886.2] Hz
+	// Q poles [91.2 643.9 2631.6] Hz
+	// min 65.8 dB, delay 0.181 ms at the band centre
+}
+
+// Preferred values: the nearest E12 and E96 parts to a computed
+// resistance.
+func ExampleSnap() {
+	e12, _ := hilbert.Series("E12")
+	e96, _ := hilbert.Series("E96")
+	r := 1 / (2 * math.Pi * 643.9 * 10e-9) // Ω for a 643.9 Hz pole with 10 nF
+	fmt.Printf("%.0f Ω → E12 %.0f Ω, E96 %.0f Ω\n", r, hilbert.Snap(r, e12), hilbert.Snap(r, e96))
+	// Output:
+	// 24717 Ω → E12 27000 Ω, E96 24900 Ω
+}

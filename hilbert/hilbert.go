@@ -166,6 +166,23 @@ func Analyze(s Splitter, low, high float64) Analysis {
 	if !(low > 0 && low < high) {
 		panic("hilbert: Analyze band must satisfy 0 < low < high")
 	}
+	b := analyzeBand(s, low, high)
+	d := s.Delay()
+	b.DelaySamples = d
+	b.DelayMS = 1000 * d / s.Spec().Rate
+	b.MACsPerSample = s.MACs()
+	return b
+}
+
+// responder is anything with an analytic response H(f): the digital
+// splitters and the analog networks.
+type responder interface {
+	Response(f float64) complex128
+}
+
+// analyzeBand fills the suppression and ripple fields of an Analysis of r
+// over [low, high].
+func analyzeBand(s responder, low, high float64) Analysis {
 	var (
 		freq, pos, neg [gridPoints]float64
 		ratio          [gridPoints]float64 // |H(f)|/|H(−f)|, capped
@@ -219,14 +236,10 @@ func Analyze(s Splitter, low, high float64) Analysis {
 		b := math.Min(high, low+float64(min(i+1, gridPoints-1))*step)
 		minDB = math.Min(minDB, goldenMin(supp, a, b))
 	}
-	d := s.Delay()
 	return Analysis{
 		SuppressionMinDB:  minDB,
 		SuppressionMeanDB: sum / gridPoints,
 		RippleDB:          20 * math.Log10(gmax/gmin),
-		DelaySamples:      d,
-		DelayMS:           1000 * d / s.Spec().Rate,
-		MACsPerSample:     s.MACs(),
 	}
 }
 
