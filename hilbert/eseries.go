@@ -3,6 +3,7 @@ package hilbert
 import (
 	"fmt"
 	"math"
+	"strconv"
 	"strings"
 )
 
@@ -89,5 +90,8 @@ func Snap(v float64, series []float64) float64 {
 		try(m * dec)
 	}
 	try(series[0] * dec * 10)
-	return best
+	// Products like 5.23·10⁴ miss the decimal value by a rounding; the
+	// nearest float64 to the printed value is what a builder means.
+	b, _ := strconv.ParseFloat(strconv.FormatFloat(best, 'g', 12, 64), 64)
+	return b
 }

@@ -145,6 +145,9 @@ type MonteCarlo struct {
 	Tol    Tolerance
 	// Curves keeps every trial's suppression at every grid frequency.
 	Curves bool
+	// Progress, if not nil, is called after each trial with the number
+	// of trials done.
+	Progress func(done int)
 }
 
 // MCResult is the outcome of a MonteCarlo run.
@@ -224,6 +227,9 @@ func (n *Network) MonteCarlo(mc MonteCarlo) MCResult {
 			res.Curves = append(res.Curves, curve)
 		}
 		res.MinDB[t] = k.minDB(curve)
+		if mc.Progress != nil {
+			mc.Progress(t + 1)
+		}
 	}
 	return res
 }
@@ -236,6 +242,14 @@ func newDraw(seed uint64, gaussian bool) func() float64 {
 		return distuv.Normal{Mu: 0, Sigma: 1.0 / 3, Src: src}.Rand
 	}
 	return distuv.Uniform{Min: -1, Max: 1, Src: src}.Rand
+}
+
+// SuppressionCurve returns the suppression of n in dB at each of the
+// frequencies f, by the arithmetic MonteCarlo uses.
+func (n *Network) SuppressionCurve(f []float64) []float64 {
+	c := make([]float64, len(f))
+	newKernel(n, f).minDB(c)
+	return c
 }
 
 // GridMinDB returns the minimum suppression of n over the frequencies f,
