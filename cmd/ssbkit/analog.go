@@ -53,22 +53,22 @@ const maxTrials = 100000
 
 // analogReport is the --json output.
 type analogReport struct {
-	BandHz         [2]float64         `json:"band_hz"`
-	Sections       int                `json:"sections"`
-	Fix            string             `json:"fix"`
-	Series         string             `json:"series"`
-	FixedValue     float64            `json:"fixed_value"`
-	GainOhm        float64            `json:"gain_resistor_ohm"`
-	IdealMinDB     float64            `json:"ideal_min_db"`
-	IdealMeanDB    float64            `json:"ideal_mean_db"`
-	SnappedMinDB   float64            `json:"snapped_min_db"`
-	SnappedMeanDB  float64            `json:"snapped_mean_db"`
-	DelayMS        float64            `json:"delay_ms"`
-	TargetDB       float64            `json:"target_db"`
-	Parts          []analogPart       `json:"parts"`
-	MonteCarlo     analogMC           `json:"montecarlo"`
-	Sensitivity    []analogSensitivty `json:"sensitivity"`
-	ModelCaveat    string             `json:"model"`
+	BandHz        [2]float64         `json:"band_hz"`
+	Sections      int                `json:"sections"`
+	Fix           string             `json:"fix"`
+	Series        string             `json:"series"`
+	FixedValue    float64            `json:"fixed_value"`
+	GainOhm       float64            `json:"gain_resistor_ohm"`
+	IdealMinDB    float64            `json:"ideal_min_db"`
+	IdealMeanDB   float64            `json:"ideal_mean_db"`
+	SnappedMinDB  float64            `json:"snapped_min_db"`
+	SnappedMeanDB float64            `json:"snapped_mean_db"`
+	DelayMS       float64            `json:"delay_ms"`
+	TargetDB      float64            `json:"target_db"`
+	Parts         []analogPart       `json:"parts"`
+	MonteCarlo    analogMC           `json:"montecarlo"`
+	Sensitivity   []analogSensitivty `json:"sensitivity"`
+	ModelCaveat   string             `json:"model"`
 }
 
 type analogPart struct {
