@@ -24,6 +24,11 @@ type Spec struct {
 	// Low and High bound the audio band in Hz the design is optimised and
 	// analysed for: 0 < Low < High < Rate/2.
 	Low, High float64
+	// Bits, when not 0, quantises the coefficients to signed Bits-bit
+	// fractions (MinBits to MaxBits) with the largest power-of-two scale
+	// that keeps the largest coefficient in range; the all-pass pair
+	// then also filters in integer arithmetic. See Fixed and Quantized.
+	Bits int
 }
 
 // Designs lists the valid design names in order.
@@ -78,19 +83,29 @@ func New(s Spec) (Splitter, error) {
 	if err := validate(s); err != nil {
 		return nil, err
 	}
+	var sp Splitter
 	switch s.Design {
 	case "rect", "hamming", "blackman", "kaiser":
-		return newWindowed(s), nil
+		sp = newWindowed(s)
 	case "equiripple":
-		return newEquiripple(s)
+		e, err := newEquiripple(s)
+		if err != nil {
+			return nil, err
+		}
+		sp = e
 	case "allpass":
-		return newAllpass(s), nil
+		sp = newAllpass(s)
 	case "fft":
-		return newFFT(s), nil
+		sp = newFFT(s)
 	case "weaver":
-		return newWeaver(s), nil
+		sp = newWeaver(s)
+	default:
+		panic("hilbert: unreachable design")
 	}
-	panic("hilbert: unreachable design")
+	if s.Bits != 0 {
+		applyBits(sp, s.Bits)
+	}
+	return sp, nil
 }
 
 func validate(s Spec) error {
@@ -108,6 +123,9 @@ func validate(s Spec) error {
 	}
 	if !(s.Low > 0 && s.Low < s.High && s.High < s.Rate/2) {
 		return fmt.Errorf("band %g:%g Hz must satisfy 0 < low < high < rate/2 = %g Hz", s.Low, s.High, s.Rate/2)
+	}
+	if s.Bits != 0 && (s.Bits < MinBits || s.Bits > MaxBits) {
+		return fmt.Errorf("coefficient bits must be %d to %d, got %d", MinBits, MaxBits, s.Bits)
 	}
 	switch s.Design {
 	case "allpass":
