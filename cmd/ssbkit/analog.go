@@ -53,22 +53,22 @@ const maxTrials = 100000
 
 // analogReport is the --json output.
 type analogReport struct {
-	BandHz        [2]float64         `json:"band_hz"`
-	Sections      int                `json:"sections"`
-	Fix           string             `json:"fix"`
-	Series        string             `json:"series"`
-	FixedValue    float64            `json:"fixed_value"`
-	GainOhm       float64            `json:"gain_resistor_ohm"`
-	IdealMinDB    float64            `json:"ideal_min_db"`
-	IdealMeanDB   float64            `json:"ideal_mean_db"`
-	SnappedMinDB  float64            `json:"snapped_min_db"`
-	SnappedMeanDB float64            `json:"snapped_mean_db"`
-	DelayMS       float64            `json:"delay_ms"`
-	TargetDB      float64            `json:"target_db"`
-	Parts         []analogPart       `json:"parts"`
-	MonteCarlo    analogMC           `json:"montecarlo"`
-	Sensitivity   []analogSensitivty `json:"sensitivity"`
-	ModelCaveat   string             `json:"model"`
+	BandHz        [2]float64          `json:"band_hz"`
+	Sections      int                 `json:"sections"`
+	Fix           string              `json:"fix"`
+	Series        string              `json:"series"`
+	FixedValue    float64             `json:"fixed_value"`
+	GainOhm       float64             `json:"gain_resistor_ohm"`
+	IdealMinDB    float64             `json:"ideal_min_db"`
+	IdealMeanDB   float64             `json:"ideal_mean_db"`
+	SnappedMinDB  float64             `json:"snapped_min_db"`
+	SnappedMeanDB float64             `json:"snapped_mean_db"`
+	DelayMS       float64             `json:"delay_ms"`
+	TargetDB      float64             `json:"target_db"`
+	Parts         []analogPart        `json:"parts"`
+	MonteCarlo    analogMC            `json:"montecarlo"`
+	Sensitivity   []analogSensitivity `json:"sensitivity"`
+	ModelCaveat   string              `json:"model"`
 }
 
 type analogPart struct {
@@ -101,7 +101,7 @@ type analogMC struct {
 	Yield        float64 `json:"yield"`
 }
 
-type analogSensitivty struct {
+type analogSensitivity struct {
 	Part          string  `json:"part"`
 	Section       int     `json:"section"`
 	Path          string  `json:"path"`
@@ -291,7 +291,7 @@ func runAnalog(e *env, args []string) error {
 		r, c, rin, rf, _ := refs(s.Section)
 		ref := map[string]string{"R": r, "C": c, "Rin": rin, "Rf": rf}[s.Part]
 		role := map[string]string{"R": "sets the pole", "C": "sets the pole", "Rin": "gain (input)", "Rf": "gain (feedback)"}[s.Part]
-		rep.Sensitivity = append(rep.Sensitivity, analogSensitivty{Part: ref, Section: s.Section + 1, Path: pathName(snapped.Sections[s.Section].Q),
+		rep.Sensitivity = append(rep.Sensitivity, analogSensitivity{Part: ref, Section: s.Section + 1, Path: pathName(snapped.Sections[s.Section].Q),
 			Role: role, TolerancePct: 100 * s.Tolerance, DropDB: round(s.DropDB, 2), SlopeDBPerPct: round(s.SlopeDBPerPct, 3)})
 	}
 	sort.SliceStable(rep.Sensitivity, func(i, j int) bool { return rep.Sensitivity[i].DropDB > rep.Sensitivity[j].DropDB })
@@ -427,7 +427,7 @@ func writeAnalogText(w io.Writer, r analogReport) error {
 	fmt.Fprintf(w, "  yield for %g dB: %.1f %% of trials\n", r.TargetDB, 100*m.Yield)
 	fmt.Fprintf(w, "\nParts that matter most (fall of the minimum with that part alone at its tolerance limit):\n")
 	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
-	line := func(s analogSensitivty) {
+	line := func(s analogSensitivity) {
 		fmt.Fprintf(tw, "  %s\t%s path, section %d, %s\t±%g %%\t%.2f dB\t(%.3f dB per %%, small changes)\n", s.Part, s.Path, s.Section, s.Role, s.TolerancePct, s.DropDB, s.SlopeDBPerPct)
 	}
 	const shown = 6
