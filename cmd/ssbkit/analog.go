@@ -302,7 +302,7 @@ func runAnalog(e *env, args []string) error {
 		}
 	}
 	if *plotTo != "" {
-		title := fmt.Sprintf("Analog network, %d sections, %s–%s Hz: ideal %.1f dB, %s %.1f dB, Monte Carlo median %.1f dB", n,
+		title := fmt.Sprintf("Analog network, %d sections, %s–%s Hz: ideal %.1f dB, %s %.1f dB; Monte Carlo band minimum: median %.1f dB", n,
 			fmtHz(low), fmtHz(high), rep.IdealMinDB, seriesName, rep.SnappedMinDB, rep.MonteCarlo.MedianDB)
 		err := writeOutputTo(e, *plotTo, *force, func(w io.Writer) error {
 			return writeAnalogPNG(w, title, mc, ideal.SuppressionCurve(mc.Freq), snapped.SuppressionCurve(mc.Freq), seriesName, *target)
@@ -322,13 +322,14 @@ func runAnalog(e *env, args []string) error {
 }
 
 // parsePart parses a part value with an optional SI prefix (p, n, u or µ,
-// m, k, M, G) and unit, as builders write them: 10n, 4.7nF, 4k7, 22kΩ,
-// 1M. The prefix may stand for the decimal point (4k7 = 4.7k).
+// m, k, M, G) and unit, as builders write them: 10n, 4.7 nF, 4k7, 22kΩ,
+// 1M (spaces ignored). The prefix may stand for the decimal point
+// (4k7 = 4.7k).
 func parsePart(flag, s, unit string) (float64, error) {
 	bad := func() (float64, error) {
 		return 0, usagef("%s %q: want a positive value like 10n, 4.7nF, 4k7 or 22k", flag, s)
 	}
-	t := strings.TrimSpace(s)
+	t := strings.ReplaceAll(s, " ", "")
 	for _, u := range []string{unit, "ohm", "ohms", "R", "F"} {
 		if u != "" && strings.HasSuffix(t, u) && len(t) > len(u) {
 			t = strings.TrimSuffix(t, u)
@@ -489,7 +490,7 @@ func writeBOM(w io.Writer, r analogReport, n *hilbert.Network, tol hilbert.Toler
 		unit, t, note := "ohm", tol.R, ""
 		if k.kind == "capacitor" {
 			unit, t = "F", tol.C
-			note = "stable dielectric (C0G/NP0 or film); one value, matched"
+			note = "stable dielectric (C0G/NP0 or film), one value for every section"
 		} else if k.value == sig(r.GainOhm, 6) {
 			note = "Rin and Rf of each op-amp; their ratio sets the section's gain"
 		}
