@@ -92,7 +92,7 @@ func runDemo(e *env, args []string) error {
 	if st, err := os.Stat(*out); err == nil && !st.IsDir() {
 		return fmt.Errorf("%s is not a folder", *out)
 	}
-	if err := os.MkdirAll(*out, 0o755); err != nil {
+	if err := mkdirOutput(*out); err != nil {
 		return fmt.Errorf("cannot create %s: %w", *out, unwrapPath(err))
 	}
 	d := &demo{e: e, dir: *out, force: *force, quiet: *quiet, total: 9, started: time.Now()}

@@ -43,6 +43,11 @@ decode them. Signals of unknown kind (a few discrete lines, such as
 test tones, whose sideband the spectrum cannot tell) are skipped with a
 warning; tune them with --offset HZ:usb or HZ:lsb.`
 
+// minBandwidth is the narrowest --bandwidth: narrower than any voice or
+// AM channel, and the channel filter's length grows as its inverse (0.01 Hz
+// took minutes to design).
+const minBandwidth = 100
+
 // rxChannel is one channel requested on the command line.
 type rxChannel struct {
 	offset float64 // from the capture centre
@@ -95,8 +100,8 @@ func runRx(e *env, args []string) error {
 	}
 	var bandwidth float64
 	if *bw != "" {
-		if bandwidth, err = iq.ParseFrequency(*bw); err != nil || !(bandwidth > 0) {
-			return usagef("--bandwidth: want a positive frequency, got %q", *bw)
+		if bandwidth, err = iq.ParseFrequency(*bw); err != nil || !(bandwidth >= minBandwidth) {
+			return usagef("--bandwidth %s: want an audio bandwidth of at least %d Hz", *bw, minBandwidth)
 		}
 	}
 	if *auto && (len(offsets) > 0 || len(freqs) > 0) {

@@ -51,6 +51,14 @@ Examples:
 // capture (segments are then spread evenly over it).
 const fftBudget = 16 << 20
 
+// maxPicture bounds --width and --height in points: 4000 points draw
+// 5333 pixels at vgimg's 96 dpi, 114 MB of image at the largest.
+const maxPicture = 4000
+
+// minSpectrumBins is the fewest FFT bins --resolution may ask for; fewer
+// show no spectrum worth the name.
+const minSpectrumBins = 16
+
 func runSpectrum(e *env, args []string) error {
 	fs := newFlagSet(e, "spectrum", spectrumUsage, spectrumExamples)
 	out := fs.StringP("output", "o", "", "PNG picture to write")
@@ -88,8 +96,8 @@ func runSpectrum(e *env, args []string) error {
 	if *rows < 1 || *rows > 4000 {
 		return usagef("--rows %d: want 1…4000", *rows)
 	}
-	if *width < 200 || *height < 200 {
-		return usagef("--width and --height: want at least 200 points")
+	if *width < 200 || *height < 200 || *width > maxPicture || *height > maxPicture {
+		return usagef("--width %d, --height %d: want 200 to %d points each", *width, *height, maxPicture)
 	}
 	in := fs.Arg(0)
 	if err := needFile("-o", *out); err != nil {
@@ -106,6 +114,9 @@ func runSpectrum(e *env, args []string) error {
 	}
 	defer src.Close()
 	meta := src.Meta()
+	if res > meta.Rate/minSpectrumBins {
+		return usagef("--resolution %s: coarser than the capture allows (at most rate/%d = %.4g Hz for %.10g Hz)", *resS, minSpectrumBins, meta.Rate/minSpectrumBins, meta.Rate)
+	}
 	n := spectral.FFTSizeFor(meta.Rate, res)
 	if meta.Samples >= 0 && meta.Samples < int64(n) {
 		coarser := meta.Rate / float64(max(2, prevPow2(int(meta.Samples))))

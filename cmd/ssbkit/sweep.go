@@ -396,8 +396,8 @@ func parseLengths(flag, s string) ([]int, error) {
 
 // parseRateBand parses --rate and --band and checks 0 < low < high < rate/2.
 func parseRateBand(rateS, bandS string) (rate, low, high float64, err error) {
-	if rate, err = iq.ParseFrequency(rateS); err != nil || !(rate > 0) {
-		return 0, 0, 0, usagef("--rate %q: want a positive frequency in Hz (e.g. 8000 or 48k)", rateS)
+	if rate, err = parseRate("--rate", rateS); err != nil {
+		return 0, 0, 0, err
 	}
 	if low, high, err = iq.ParseBand(bandS); err != nil {
 		return 0, 0, 0, usagef("--band: %v", err)

@@ -54,6 +54,11 @@ Examples:
 // down (a 5 kHz tone at 22.05 kHz, measured).
 const outOfBandDB = 12
 
+// maxToneSeconds caps --seconds: an hour of test tones is 1.4 GB of
+// cf32 at 48 kHz and far more at receiver rates; a longer run is more
+// likely a slip of the keyboard than a need.
+const maxToneSeconds = 3600
+
 // txBlock is the number of audio samples modulated at a time.
 const txBlock = 1024
 
@@ -144,8 +149,8 @@ func runTx(e *env, args []string) error {
 	if len(tones) == 0 && fs.Changed("seconds") {
 		return usagef("--seconds applies to test tones (an audio file has its own length)")
 	}
-	if len(tones) > 0 && !(*seconds > 0 && *seconds <= 24*3600) {
-		return usagef("--seconds %g: want more than 0 and at most a day", *seconds)
+	if len(tones) > 0 && !(*seconds > 0 && *seconds <= maxToneSeconds) {
+		return usagef("--seconds %g: want more than 0 and at most %d (an hour of test tones)", *seconds, maxToneSeconds)
 	}
 	if *out == "" {
 		return usagef("no output path given (-o OUT)")
@@ -203,11 +208,8 @@ func runTx(e *env, args []string) error {
 		cfg.BandLow, cfg.BandHigh = lo, hi
 	}
 	var err error
-	if cfg.OutRate, err = iq.ParseFrequency(*rate); err != nil {
-		return usagef("--rate: %v", err)
-	}
-	if !(cfg.OutRate > 0) {
-		return usagef("--rate: must be positive")
+	if cfg.OutRate, err = parseRate("--rate", *rate); err != nil {
+		return err
 	}
 	if cfg.Offset, err = iq.ParseFrequency(*offset); err != nil {
 		return usagef("--offset: %v", err)
@@ -261,6 +263,10 @@ func runTx(e *env, args []string) error {
 				amp = 0.5
 			}
 			return modem.NewToneSource(tones, amp, 48000, int64(math.Round(*seconds*48000))), func() {}, nil
+		}
+		// iq's WAV reader names a damaged header's fault precisely.
+		if err := iq.CheckWAV(input); err != nil {
+			return nil, nil, err
 		}
 		a, err := modem.OpenAudio(input)
 		if err != nil {
@@ -474,7 +480,7 @@ func runTx(e *env, args []string) error {
 		lv.Add(y)
 		if werr == nil {
 			if _, err := w.Write(y); err != nil {
-				werr = fmt.Errorf("%s: %w", *out, err)
+				werr = fmt.Errorf("%s: %w", outName(*out), err)
 			}
 			bar.Add(len(y))
 		}
