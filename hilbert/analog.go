@@ -30,6 +30,11 @@ type Analog struct {
 	I, Q []float64
 }
 
+// MaxAnalogRatio bounds the band ratio high/low of NewAnalog: six decades,
+// far beyond audio, and within what the elliptic functions resolve in
+// float64 (k = (1 − κ)/(1 + κ) must stay distinguishable from 1).
+const MaxAnalogRatio = 1e6
+
 // NewAnalog designs the equiripple 90° pair of n first-order sections in
 // all (both paths together) for the band [low, high] Hz: the phase
 // difference departs from 90° by at most ε over the band, with n+1
@@ -57,14 +62,18 @@ type Analog struct {
 // takes the same equal spacing of u. The tests check the equiripple
 // alternation for every n and the bilinear correspondence for odd n.
 //
-// NewAnalog returns an error for n outside 1…MaxSections or a band not
-// satisfying 0 < low < high < ∞.
+// NewAnalog returns an error for n outside 1…MaxSections, a band not
+// satisfying 0 < low < high < ∞, or a band ratio high/low above
+// MaxAnalogRatio.
 func NewAnalog(n int, low, high float64) (*Analog, error) {
 	if n < 1 || n > MaxSections {
 		return nil, fmt.Errorf("analog sections must be 1 to %d, got %d", MaxSections, n)
 	}
 	if !(low > 0 && low < high) || math.IsInf(high, 0) {
 		return nil, fmt.Errorf("band %g:%g Hz must satisfy 0 < low < high < ∞", low, high)
+	}
+	if high/low > MaxAnalogRatio {
+		return nil, fmt.Errorf("band %g:%g Hz spans a ratio of %.3g, more than %g", low, high, high/low, float64(MaxAnalogRatio))
 	}
 	kappa := low / high
 	k := (1 - kappa) / (1 + kappa)

@@ -186,7 +186,7 @@ func TestAnalogBad(t *testing.T) {
 	for _, c := range []struct {
 		n         int
 		low, high float64
-	}{{0, 300, 2700}, {MaxSections + 1, 300, 2700}, {4, 0, 2700}, {4, 2700, 300}, {4, 300, math.Inf(1)}, {4, math.NaN(), 2700}, {4, -5, 10}} {
+	}{{0, 300, 2700}, {MaxSections + 1, 300, 2700}, {4, 0, 2700}, {4, 2700, 300}, {4, 300, math.Inf(1)}, {4, math.NaN(), 2700}, {4, -5, 10}, {4, 1, 1.01e6}, {4, 300, 1e308}} {
 		if _, err := NewAnalog(c.n, c.low, c.high); err == nil {
 			t.Errorf("NewAnalog(%d, %g, %g): no error", c.n, c.low, c.high)
 		}

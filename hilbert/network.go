@@ -53,11 +53,16 @@ type Parts struct {
 }
 
 // Build returns the network of parts p for the design: I sections first,
-// then Q, each path by ascending pole.
+// then Q, each path by ascending pole. It panics if p.Value is not
+// positive and finite or a computed part is not (a pole near 0 Hz with a
+// tiny fixed part).
 func (a *Analog) Build(p Parts) *Network {
 	g := p.Gain
 	if g == 0 {
 		g = 10e3
+	}
+	if !(p.Value > 0) || math.IsInf(p.Value, 0) {
+		panic("hilbert: Build needs a positive finite part value")
 	}
 	n := &Network{}
 	for _, path := range []struct {

@@ -128,7 +128,7 @@ func runAnalog(e *env, args []string) error {
 	fs := newFlagSet(e, "analog", analogUsage, analogExamples)
 	out := fs.StringP("output", "o", "", "write the report (or JSON) here instead of standard output")
 	force := fs.Bool("force", false, "overwrite existing outputs")
-	bandS := fs.String("band", "300:2700", "audio band LOW:HIGH in Hz")
+	bandS := fs.String("band", "300:2700", "audio band LOW:HIGH in Hz (1 Hz to 10 MHz)")
 	sections := fs.Int("sections", 6, fmt.Sprintf("first-order sections of both paths together, 1 to %d", hilbert.MaxSections))
 	target := fs.Float64("target", 40, "suppression goal in dB: the yield counts trials reaching it; alone, it picks the fewest sections")
 	fix := fs.String("fix", "c", "which part is fixed: c (every section the same capacitor, R computed) or r")
@@ -159,6 +159,9 @@ func runAnalog(e *env, args []string) error {
 	if !(low > 0) {
 		return usagef("--band %s: want 0 < LOW < HIGH", *bandS)
 	}
+	if low < 1 || high > 10e6 || high/low > hilbert.MaxAnalogRatio {
+		return usagef("--band %s: want an audio band from 1 Hz to 10 MHz spanning at most a ratio of %g", *bandS, float64(hilbert.MaxAnalogRatio))
+	}
 	if fs.Changed("sections") && (*sections < 1 || *sections > hilbert.MaxSections) {
 		return usagef("--sections %d: want 1 to %d", *sections, hilbert.MaxSections)
 	}
@@ -179,15 +182,15 @@ func runAnalog(e *env, args []string) error {
 	default:
 		return usagef("--fix %q: want c or r", *fix)
 	}
-	cVal, err := parsePart("--c", *cS, "F")
+	cVal, err := parsePartIn("--c", *cS, "F", 1e-12, 1)
 	if err != nil {
 		return err
 	}
-	rVal, err := parsePart("--r", *rS, "Ω")
+	rVal, err := parsePartIn("--r", *rS, "Ω", 1, 1e9)
 	if err != nil {
 		return err
 	}
-	gain, err := parsePart("--r-gain", *gainS, "Ω")
+	gain, err := parsePartIn("--r-gain", *gainS, "Ω", 1, 1e9)
 	if err != nil {
 		return err
 	}
@@ -319,6 +322,16 @@ func runAnalog(e *env, args []string) error {
 		}
 		return writeAnalogText(w, rep)
 	})
+}
+
+// parsePartIn is parsePart with the value bounded to [lo, hi], the parts
+// a builder can buy (1 pF to 1 F, 1 Ω to 1 GΩ).
+func parsePartIn(flag, s, unit string, lo, hi float64) (float64, error) {
+	v, err := parsePart(flag, s, unit)
+	if err == nil && !(v >= lo && v <= hi) {
+		return 0, usagef("%s %q: want %s to %s", flag, s, fmtSI(lo, unit, 3), fmtSI(hi, unit, 3))
+	}
+	return v, err
 }
 
 // parsePart parses a part value with an optional SI prefix (p, n, u or µ,

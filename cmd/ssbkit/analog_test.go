@@ -144,6 +144,11 @@ func TestAnalogBadInput(t *testing.T) {
 		{[]string{"--target", "400"}, "--target"},
 		{[]string{"--target", "250", "--band", "300:3000"}, "reach only"},
 		{[]string{"--points", "8"}, "--points"},
+		{[]string{"--band", "300:1e308"}, "1 Hz to 10 MHz"},
+		{[]string{"--band", "0.5:3000"}, "1 Hz to 10 MHz"},
+		{[]string{"--c", "1e-320"}, "want 1 pF to 1 F"},
+		{[]string{"--fix", "r", "--r", "0.1"}, "want 1 Ω to 1 GΩ"},
+		{[]string{"--r-gain", "1e12"}, "--r-gain"},
 		{[]string{"--bom", "-"}, "needs a file"},
 		{[]string{"extra"}, "no arguments"},
 	} {
