@@ -37,8 +37,10 @@ data range, y = a·(x + y[n-2]) - x[n-2] formed exactly in a B+D+2-bit
 accumulator and rounded back; tones measured through it are reported.
 With --bits, --export writes the integers (int16 up to 16 bits, int32
 above) and the scale in the header comment, and --coeffs adds an
-integer column. Rounding the taps costs about 6 dB of floor per bit
-removed (a 63-tap equiripple design at 16 bits floors near 76-82 dB).
+integer column. FIR taps are re-rounded (each within 1.5 steps of its
+exact value) to the choice that keeps the band's suppression highest.
+Quantising costs about 6 dB of floor per bit removed (a 63-tap
+equiripple design at 16 bits floors near 79-88 dB).
 
 Examples:
   ssbkit splitter
