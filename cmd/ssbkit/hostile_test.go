@@ -1,3 +1,5 @@
+//go:build unix
+
 package main
 
 import (
@@ -152,6 +154,10 @@ func hostileCases() []hostileCase {
 			args: []string{"measure", "cut.cf32", "--rate", "48k"}, exit: 1, names: "cut.cf32", why: "5 bytes left over"},
 		{group: "raw", what: "ci8 with a partial last sample", files: map[string][]byte{"cut.cs8": make([]byte, 4097)},
 			args: []string{"spectrum", "cut.cs8", "--rate", "48k", "-o", "s.png"}, exit: 1, names: "cut.cs8", why: "1 byte left over"},
+		{group: "raw", what: "rf32 (real) with a partial last sample", files: map[string][]byte{"cut.raw": make([]byte, 4*50+3)},
+			args: []string{"rx", "cut.raw", "--format", "rf32", "--rate", "48k", "--offset", "1000", "-o", "a.wav"}, exit: 1, names: "cut.raw", why: "3 bytes left over"},
+		{group: "raw", what: "ri16 (real) with a partial last sample", files: map[string][]byte{"cut.ci16": make([]byte, 2*50+1)},
+			args: []string{"info", "cut.ci16", "--format", "ri16", "--rate", "48k"}, exit: 1, names: "cut.ci16", why: "1 byte left over"},
 		{group: "raw", what: "zero-length file", files: map[string][]byte{"empty.cf32": nil},
 			args: []string{"rx", "empty.cf32", "--rate", "48k", "-o", "a.wav"}, exit: 1, names: "empty.cf32", why: "empty file"},
 		{group: "raw", what: "one-byte file", files: map[string][]byte{"one.ci16": {7}},

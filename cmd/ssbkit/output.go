@@ -3,6 +3,7 @@ package main
 import (
 	"errors"
 	"fmt"
+	"io"
 	"os"
 	"os/signal"
 	"path/filepath"
@@ -241,6 +242,25 @@ func (o *outFile) remove() {
 	pending.Lock()
 	delete(pending.names, o.File.Name())
 	pending.Unlock()
+}
+
+// stickyWriter keeps the first write error of a report printed with
+// fmt.Fprintf, which drops them: checked at the end, it keeps a report
+// cut short by a full disk from being committed as if whole.
+type stickyWriter struct {
+	w   io.Writer
+	err error
+}
+
+func (s *stickyWriter) Write(p []byte) (int, error) {
+	if s.err != nil {
+		return 0, s.err
+	}
+	n, err := s.w.Write(p)
+	if err != nil {
+		s.err = unwrapPath(err)
+	}
+	return n, err
 }
 
 // unwrapPath drops the *PathError wrapper, whose text repeats the

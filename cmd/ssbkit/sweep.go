@@ -1,6 +1,7 @@
 package main
 
 import (
+	"cmp"
 	"encoding/csv"
 	"encoding/json"
 	"fmt"
@@ -231,15 +232,20 @@ func measuredMin(sp hilbert.Splitter, low, high float64) (measured, predicted fl
 // for "" and "-".
 func writeOutputTo(e *env, path string, force bool, fill func(io.Writer) error) error {
 	if path == "" || path == "-" {
-		return fill(e.stdout)
+		sw := &stickyWriter{w: e.stdout}
+		if err := fill(sw); err != nil || sw.err != nil {
+			return fmt.Errorf("standard output: %w", cmp.Or(sw.err, err))
+		}
+		return nil
 	}
 	f, err := createOutput(path, force)
 	if err != nil {
 		return err
 	}
 	defer f.Abort()
-	if err := fill(f); err != nil {
-		return fmt.Errorf("%s: %w", path, err)
+	sw := &stickyWriter{w: f}
+	if err := fill(sw); err != nil || sw.err != nil {
+		return fmt.Errorf("%s: %w", path, cmp.Or(sw.err, err))
 	}
 	return f.Commit()
 }
