@@ -7,7 +7,6 @@ import (
 	"strings"
 	"testing"
 
-	"ssbkit/hilbert"
 )
 
 // FuzzParseRateBand: --rate and --band of sweep and splitter, and
@@ -54,7 +53,7 @@ func FuzzParseDesigns(f *testing.F) {
 		}
 		seen := map[string]bool{}
 		for _, x := range d {
-			if !slices.Contains(hilbert.Designs, x) || seen[x] {
+			if !slices.Contains(sweepDesigns(), x) || seen[x] {
 				t.Fatalf("%q: design %q unknown or repeated in %q", s, x, d)
 			}
 			seen[x] = true

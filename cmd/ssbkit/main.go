@@ -49,6 +49,7 @@ var commands = []command{
 	{"measure", "modulation quality of one SSB/AM transmission", runMeasure},
 	{"sweep", "opposite-sideband suppression against phase-splitter length", runSweep},
 	{"splitter", "one phase-splitter design in detail, coefficients, plot", runSplitter},
+	{"analog", "analog RC phasing network: parts, tolerances, parts list", runAnalog},
 	{"spectrum", "averaged spectrum and waterfall; detect signals", runSpectrum},
 	{"info", "format, level, DC, clipping and I/Q balance of a capture", runInfo},
 	{"convert", "convert a capture between sample formats", runConvert},
