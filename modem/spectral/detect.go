@@ -29,6 +29,16 @@ type Signal struct {
 	SNRdB float64
 	// Kind is usb, lsb, am, carrier or unknown.
 	Kind string
+	// EdgeOffsetHz is, for usb and lsb, the carrier placed from the
+	// spectrum's edge (OffsetHz as Detect returns it); CarrierRefiner may
+	// then move OffsetHz to the carrier found from the voice.
+	EdgeOffsetHz float64
+	// TuningConfidence is CarrierRefiner's confidence in OffsetHz (usb
+	// and lsb; 0: not refined, OffsetHz is the edge estimate).
+	TuningConfidence float64
+	// Track is the refined carrier against time (usb and lsb, after
+	// CarrierRefiner; nil otherwise).
+	Track []TunePoint
 }
 
 // DetectOptions tunes Detect. The zero value gives the documented
@@ -289,8 +299,10 @@ func Detect(psd []float64, rate float64, opt DetectOptions) []Signal {
 			switch {
 			case rel < -centroidSkew:
 				s.Kind, s.OffsetHz = KindUSB, s.LowHz-opt.AudioLowHz
+				s.EdgeOffsetHz = s.OffsetHz
 			case rel > centroidSkew:
 				s.Kind, s.OffsetHz = KindLSB, s.HighHz+opt.AudioLowHz
+				s.EdgeOffsetHz = s.OffsetHz
 			default:
 				s.Kind, s.OffsetHz = KindUnknown, mid
 			}
