@@ -1,6 +1,7 @@
 package modem
 
 import (
+	"cmp"
 	"errors"
 	"fmt"
 	"math"
@@ -77,7 +78,7 @@ const (
 	tunePitchHi    = 400   //
 	tuneValley     = 0.6   // largest |R(T₀/2)|/|R(T₀)| of a voiced frame
 	tuneVoicing    = 0.45  // normalised periodicity above which a frame is voiced
-	tuneLagSpan    = 0.75  // the comb uses lags up to this fraction of the frame
+	tuneLagSpan    = 0.75  // the comb uses lags up to this fraction of the frame (and M/2)
 	tuneLineHz     = 60    // half-width of the carrier zone that must be empty, Hz
 	tuneLineFrac   = 0.1   // largest carrier-zone density relative to the voice band's
 	tuneTooth      = 3.0   // Hz, standard deviation of a frame's offset (the width of its teeth)
@@ -115,8 +116,10 @@ const (
 // throughout, a tone, two tones) leaves its aliases as high as the peak
 // and gets no confidence; noise has no voiced frames.
 //
-// Frames are 64 ms, Hann-windowed, zero-padded to twice their length or
-// more; S is the magnitude |X| (compressing the dynamic range so the
+// Frames are 64 ms, Hann-windowed, zero-padded to a power of two at
+// least 4/3 of their length (R is then read out to two thirds of the
+// frame, where the circular wrap of the transform still lies beyond the
+// window's autocorrelation of note); S is the magnitude |X| (compressing the dynamic range so the
 // weaker harmonics count) over 200–2400 Hz above (USB) or below (LSB)
 // the assumed carrier, less its 250 Hz moving average (whitening: the
 // formant envelope would otherwise dominate R at short lags; the
@@ -224,7 +227,7 @@ func NewTuneEstimator(cfg TuneConfig) (*TuneEstimator, error) {
 	}
 	e.n = int(math.Round(tuneFrame * fs))
 	e.m = 1
-	for e.m < 2*e.n {
+	for e.m < e.n*4/3 {
 		e.m *= 2
 	}
 	e.plan = newFFTPlan(e.m)
@@ -257,7 +260,7 @@ func NewTuneEstimator(cfg TuneConfig) (*TuneEstimator, error) {
 	e.centre = cfg.Carrier + e.sign*(tuneLowHz+tuneHighHz)/2
 	e.tauLo = int(math.Ceil(fs / tunePitchHi))
 	e.tauHi = int(math.Floor(fs / tunePitchLo))
-	e.maxLag = tuneLagSpan * float64(e.n)
+	e.maxLag = math.Min(tuneLagSpan*float64(e.n), float64(e.m/2-5))
 	ext := cfg.Range + tunePitchHi
 	e.gridLo = -math.Ceil(ext)
 	e.grid = 2*int(math.Ceil(ext)) + 1
@@ -303,14 +306,16 @@ func NewTuneEstimator(cfg TuneConfig) (*TuneEstimator, error) {
 	return e, nil
 }
 
-// sortByU sorts bins and u together by u (insertion sort: the slices are
-// already in two ascending or descending runs).
+// sortByU sorts bins and u together by u.
 func sortByU(bins []int, u []float64) {
-	for i := 1; i < len(u); i++ {
-		for j := i; j > 0 && u[j] < u[j-1]; j-- {
-			u[j], u[j-1] = u[j-1], u[j]
-			bins[j], bins[j-1] = bins[j-1], bins[j]
-		}
+	idx := make([]int, len(u))
+	for i := range idx {
+		idx[i] = i
+	}
+	slices.SortFunc(idx, func(a, b int) int { return cmp.Compare(u[a], u[b]) })
+	b2, u2 := slices.Clone(bins), slices.Clone(u)
+	for i, k := range idx {
+		bins[i], u[i] = b2[k], u2[k]
 	}
 }
 
@@ -679,7 +684,9 @@ func (e *TuneEstimator) combMag(tau float64, nm int) float64 {
 	return s
 }
 
-func cmplxAbs(x complex128) float64 { return math.Hypot(real(x), imag(x)) }
+// cmplxAbs is |x| without math.Hypot's guard against overflow (the
+// values here are far from it).
+func cmplxAbs(x complex128) float64 { return math.Sqrt(real(x)*real(x) + imag(x)*imag(x)) }
 
 // movingAverage writes the mean of x over w points (w odd) centred on
 // each point to dst, the ends averaging over the points present.

@@ -35,12 +35,13 @@ func ExampleTuneEstimator() {
 		panic(err)
 	}
 	for _, est := range e.Process(nil, x) {
-		fmt.Printf("%.1f–%.1f s: %+.0f Hz, accepted %v\n", est.Start, est.End, est.OffsetHz, est.OK)
+		fmt.Printf("%.1f–%.1f s: accepted %v, within 2 Hz of +37 Hz: %v\n",
+			est.Start, est.End, est.OK, math.Abs(est.OffsetHz-37) < 2)
 	}
 	// Output:
-	// 0.0–3.1 s: +37 Hz, accepted true
-	// 1.0–4.1 s: +37 Hz, accepted true
-	// 2.0–5.1 s: +37 Hz, accepted true
-	// 3.1–6.1 s: +37 Hz, accepted true
-	// 4.1–7.2 s: +37 Hz, accepted true
+	// 0.0–3.1 s: accepted true, within 2 Hz of +37 Hz: true
+	// 1.0–4.1 s: accepted true, within 2 Hz of +37 Hz: true
+	// 2.0–5.1 s: accepted true, within 2 Hz of +37 Hz: true
+	// 3.1–6.1 s: accepted true, within 2 Hz of +37 Hz: true
+	// 4.1–7.2 s: accepted true, within 2 Hz of +37 Hz: true
 }
