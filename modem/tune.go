@@ -117,9 +117,10 @@ const (
 // and gets no confidence; noise has no voiced frames.
 //
 // Frames are 64 ms, Hann-windowed, zero-padded to a power of two at
-// least 4/3 of their length (R is then read out to two thirds of the
-// frame, where the circular wrap of the transform still lies beyond the
-// window's autocorrelation of note); S is the magnitude |X| (compressing the dynamic range so the
+// least 4/3 of their length (R is read out to 3/4 of the frame or half
+// the transform, whichever is shorter: at 6 kHz, 384 samples in 512 and
+// lags to 251, where the transform's circular wrap meets only the far
+// tail of the window's autocorrelation); S is the magnitude |X| (compressing the dynamic range so the
 // weaker harmonics count) over 200–2400 Hz above (USB) or below (LSB)
 // the assumed carrier, less its 250 Hz moving average (whitening: the
 // formant envelope would otherwise dominate R at short lags; the
@@ -511,7 +512,7 @@ func (e *TuneEstimator) analyse(h *tuneHop) {
 		return
 	}
 	// whitening: remove the moving average over tuneWhitenHz
-	movingAverage(e.white, e.mag, e.mw)
+	MovingAverage(e.white, e.mag, e.mw)
 	var z float64
 	for i := range e.white {
 		e.white[i] = e.mag[i] - e.white[i]
@@ -688,9 +689,14 @@ func (e *TuneEstimator) combMag(tau float64, nm int) float64 {
 // values here are far from it).
 func cmplxAbs(x complex128) float64 { return math.Sqrt(real(x)*real(x) + imag(x)*imag(x)) }
 
-// movingAverage writes the mean of x over w points (w odd) centred on
-// each point to dst, the ends averaging over the points present.
-func movingAverage(dst, x []float64, w int) {
+// MovingAverage writes to dst[:len(x)] (reallocated when short) the mean
+// of x over w points (w odd) centred on each point, the ends averaging
+// over the points present, and returns it. dst must not overlap x.
+func MovingAverage(dst, x []float64, w int) []float64 {
+	if cap(dst) < len(x) {
+		dst = make([]float64, len(x))
+	}
+	dst = dst[:len(x)]
 	h := w / 2
 	var acc float64
 	cnt := 0
@@ -709,4 +715,5 @@ func movingAverage(dst, x []float64, w int) {
 		}
 		dst[j] = acc / float64(cnt)
 	}
+	return dst
 }

@@ -1,7 +1,6 @@
 package modem_test
 
 import (
-	"io"
 	"math"
 	"testing"
 
@@ -24,15 +23,7 @@ func TestTuneDemoBand(t *testing.T) {
 		t.Fatal(err)
 	}
 	truth := band.Truth()
-	x := make([]complex64, 0, truth.Samples)
-	buf := make([]complex64, 1<<16)
-	for {
-		n, err := band.Read(buf)
-		x = append(x, buf[:n]...)
-		if err == io.EOF {
-			break
-		}
-	}
+	x := band.ReadAll()
 	for _, st := range truth.Stations {
 		if st.Mode != "usb" && st.Mode != "lsb" {
 			continue

@@ -252,3 +252,29 @@ func TestTuneConfigErrors(t *testing.T) {
 		t.Errorf("defaults: %v", err)
 	}
 }
+
+// MovingAverage against the mean computed directly over each window
+// (its definition; the ends average the points present).
+func TestMovingAverage(t *testing.T) {
+	const tol = 1e-12
+	x := make([]float64, 40)
+	for i := range x {
+		x[i] = math.Sin(float64(i)) + float64(i%7)
+	}
+	for _, w := range []int{1, 3, 9, 41, 99} {
+		got := MovingAverage(nil, x, w)
+		for j := range x {
+			var s float64
+			n := 0
+			for k := j - w/2; k <= j+w/2; k++ {
+				if k >= 0 && k < len(x) {
+					s += x[k]
+					n++
+				}
+			}
+			if d := math.Abs(got[j] - s/float64(n)); d > tol {
+				t.Errorf("w=%d: point %d: %g, want %g", w, j, got[j], s/float64(n))
+			}
+		}
+	}
+}

@@ -329,16 +329,7 @@ func benchMeta(t samples.BenchTruth, n int64) iq.Meta {
 }
 
 // detected is one signal of spectrum --json.
-type detected struct {
-	OffsetHz   float64  `json:"offset_hz"`
-	FreqHz     *float64 `json:"freq_hz"`
-	LowHz      float64  `json:"low_hz"`
-	HighHz     float64  `json:"high_hz"`
-	SNRdB      float64  `json:"snr_db"`
-	Kind       string   `json:"kind"`
-	EdgeHz     *float64 `json:"edge_offset_hz"`
-	Confidence *float64 `json:"tuning_confidence"`
-}
+type detected = signalJSON
 
 // parseSignals reads spectrum --json: an object with "signals" or a bare
 // list.

@@ -3,14 +3,12 @@ package main
 import (
 	"bytes"
 	"encoding/json"
-	"io"
 	"math"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
 
-	"ssbkit/iq"
 	"ssbkit/samples"
 )
 
@@ -24,30 +22,7 @@ func writeBand(t *testing.T, dir string, seconds float64) (string, samples.BandT
 	if err != nil {
 		t.Fatal(err)
 	}
-	path := filepath.Join(dir, "band.cf32")
-	f, err := os.Create(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer f.Close()
-	w, err := iq.NewRawWriter(f, iq.CF32)
-	if err != nil {
-		t.Fatal(err)
-	}
-	buf := make([]complex64, 1<<15)
-	for {
-		n, err := band.Read(buf)
-		if _, werr := w.Write(buf[:n]); werr != nil {
-			t.Fatal(werr)
-		}
-		if err == io.EOF {
-			break
-		}
-	}
-	if err := w.Close(); err != nil {
-		t.Fatal(err)
-	}
-	return path, band.Truth()
+	return writeRawCF32(t, filepath.Join(dir, "band.cf32"), band.ReadAll()), band.Truth()
 }
 
 type tunedSignal struct {

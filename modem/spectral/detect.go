@@ -4,6 +4,8 @@ import (
 	"cmp"
 	"math"
 	"slices"
+
+	"ssbkit/modem"
 )
 
 // Kinds of detected signal.
@@ -95,30 +97,8 @@ func (o DetectOptions) withDefaults() DetectOptions {
 }
 
 // smooth returns the moving average of x over w bins (w odd), the ends
-// averaging over the bins present.
-func smooth(x []float64, w int) []float64 {
-	out := make([]float64, len(x))
-	h := w / 2
-	var acc float64
-	cnt := 0
-	// running window [j-h, j+h]
-	for j := 0; j < h && j < len(x); j++ {
-		acc += x[j]
-		cnt++
-	}
-	for j := range x {
-		if k := j + h; k < len(x) {
-			acc += x[k]
-			cnt++
-		}
-		if k := j - h - 1; k >= 0 {
-			acc -= x[k]
-			cnt--
-		}
-		out[j] = acc / float64(cnt)
-	}
-	return out
-}
+// averaging over the bins present (modem.MovingAverage).
+func smooth(x []float64, w int) []float64 { return modem.MovingAverage(nil, x, w) }
 
 // smoothBins converts a smoothing width in Hz to an odd bin count.
 func smoothBins(hz, binHz float64) int {

@@ -1,7 +1,6 @@
 package spectral
 
 import (
-	"io"
 	"math"
 	"testing"
 
@@ -15,16 +14,7 @@ func demoBand(t testing.TB) ([]complex64, samples.BandTruth) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	truth := band.Truth()
-	x := make([]complex64, 0, truth.Samples)
-	buf := make([]complex64, 1<<16)
-	for {
-		n, err := band.Read(buf)
-		x = append(x, buf[:n]...)
-		if err == io.EOF {
-			return x, truth
-		}
-	}
+	return band.ReadAll(), band.Truth()
 }
 
 // The check on the demo truth: detection then refinement puts
