@@ -134,13 +134,7 @@ func (t *FineTuner) Process(dst, src []complex64) []complex64 {
 	dst = dst[:len(src)]
 	t.ests = t.analyse(t.ests[:0], src)
 	t.addKnots()
-	for i, v := range src {
-		dst[i] = t.ring[t.pos]
-		t.ring[t.pos] = v
-		if t.pos++; t.pos == t.d {
-			t.pos = 0
-		}
-	}
+	t.delayLine(dst, src)
 	t.in += int64(len(src))
 	t.correct(dst)
 	return dst
@@ -155,15 +149,29 @@ func (t *FineTuner) Drain(dst []complex64) []complex64 {
 	dst = dst[:t.d]
 	t.ests = t.est.Flush(t.ests[:0])
 	t.addKnots()
-	for i := range dst {
-		dst[i] = t.ring[t.pos]
-		t.ring[t.pos] = 0
-		if t.pos++; t.pos == t.d {
+	t.delayLine(dst, nil)
+	t.correct(dst)
+	return dst
+}
+
+// delayLine writes to dst the samples d behind those of src, which enter
+// the line (zeros for a nil src); dst must not overlap src.
+func (t *FineTuner) delayLine(dst, src []complex64) {
+	for len(dst) > 0 {
+		k := min(len(dst), t.d-t.pos)
+		r := t.ring[t.pos : t.pos+k]
+		copy(dst, r)
+		if src != nil {
+			copy(r, src[:k])
+			src = src[k:]
+		} else {
+			clear(r)
+		}
+		dst = dst[k:]
+		if t.pos += k; t.pos == t.d {
 			t.pos = 0
 		}
 	}
-	t.correct(dst)
-	return dst
 }
 
 // addKnots turns the new window estimates into knots.

@@ -82,6 +82,8 @@ const (
 	tuneLineHz     = 60    // half-width of the carrier zone that must be empty, Hz
 	tuneLineFrac   = 0.1   // largest carrier-zone density relative to the voice band's
 	tuneTooth      = 3.0   // Hz, standard deviation of a frame's offset (the width of its teeth)
+	tuneGate       = 1e-3  // frames 30 dB below the loudest recent one are not analysed (pauses)
+	tuneGateFall   = 10    // dB per second the loudest recent frame's level falls
 	tuneToothReach = 4 * tuneTooth
 )
 
@@ -176,6 +178,8 @@ type TuneEstimator struct {
 	g       []float64    // a window's comb
 	rt      []complex128 // R̃ over the lags used
 	lift    []float64    // 1/(1 − D(τ)): the whitening's lifter undone
+	level   float64      // the loudest recent frame's energy (the pause gate)
+	fall    float64      // its fall per frame
 	hopFr   int          // frames per hop
 	winHops int          // hops per window
 	hops    []tuneHop
@@ -297,6 +301,7 @@ func NewTuneEstimator(cfg TuneConfig) (*TuneEstimator, error) {
 		}
 		e.lift[tau] = 1 / math.Max(1-d, 0.1)
 	}
+	e.fall = math.Pow(10, -tuneGateFall*tuneFrame/10)
 	e.hopFr = max(1, int(math.Round(cfg.Hop*fs/float64(e.n))))
 	e.winHops = max(1, int(math.Round(cfg.Window/cfg.Hop)))
 	e.hops = make([]tuneHop, e.winHops)
@@ -335,7 +340,7 @@ func (e *TuneEstimator) HopSamples() int { return e.n * e.hopFr }
 
 // Reset forgets everything seen.
 func (e *TuneEstimator) Reset() {
-	e.fill, e.frames, e.lastWin = 0, 0, 0
+	e.fill, e.frames, e.lastWin, e.level = 0, 0, 0, 0
 	for i := range e.hops {
 		e.hops[i].clear()
 	}
@@ -490,6 +495,18 @@ func (e *TuneEstimator) lineAtCarrier(pow []float64, eps float64) bool {
 // analyse runs the frame in e.frame and adds it to hop h.
 func (e *TuneEstimator) analyse(h *tuneHop) {
 	h.frames++
+	// a pause between words: skip the transforms (the frame would be
+	// found unvoiced); the reference is the loudest recent frame, falling
+	// by tuneGateFall dB per second
+	var energy float64
+	for _, v := range e.frame {
+		r, i := float64(real(v)), float64(imag(v))
+		energy += r*r + i*i
+	}
+	e.level = math.Max(energy, e.level*e.fall)
+	if energy < e.level*tuneGate {
+		return
+	}
 	// the windowed frame, zero-padded, straight into bit-reversed order
 	clear(e.buf)
 	rev := e.plan.rev
