@@ -205,7 +205,9 @@ func TestReceiverFineTuneAligned(t *testing.T) {
 
 // A voice 80 Hz above the tuned carrier (USB) or below it (LSB) is found
 // and corrected in the receiver (the report's corrections within ±5 Hz,
-// the goal for synthetic voices); AM ignores FineTune.
+// the goal for synthetic voices), also in a channel narrowed to
+// 300–1200 Hz (whose work rate is raised for the estimator's band); AM
+// ignores FineTune.
 func TestReceiverFineTuneVoice(t *testing.T) {
 	const rate = 48000
 	const tolHz = 5
@@ -214,14 +216,17 @@ func TestReceiverFineTuneVoice(t *testing.T) {
 		off  float64 // true carrier minus tuned
 	}{{USB, 80}, {LSB, -80}, {LSB, 150}} {
 		voice, _ := synthVoice(voiceSpec{Rate: rate, Seconds: 8, Pitch: 150, Mode: tc.mode, Carrier: 5000 + tc.off, SNR: 25, Seed: 21})
-		cfgs := []RxConfig{{Rate: rate, Offset: 5000, Mode: tc.mode, FineTune: true}, {Rate: rate, Offset: 5000, Mode: AM, FineTune: true}}
+		cfgs := []RxConfig{{Rate: rate, Offset: 5000, Mode: tc.mode, FineTune: true}, {Rate: rate, Offset: 5000, Mode: AM, FineTune: true},
+			{Rate: rate, Offset: 5000, Mode: tc.mode, High: 1200, FineTune: true}}
 		got, r := runReceiver(t, cfgs, voice, 65536)
-		if len(got[0]) != len(voice) {
-			t.Errorf("%d samples, want %d", len(got[0]), len(voice))
-		}
-		rep := r.Channels()[0].FineTuner().Report()
-		if math.Abs(rep.Start-tc.off) > tolHz || math.Abs(rep.End-tc.off) > tolHz || rep.Accepted < rep.Windows*8/10 {
-			t.Errorf("%s %+g Hz: report %+v", tc.mode, tc.off, rep)
+		for _, i := range []int{0, 2} {
+			if len(got[i]) != len(voice) {
+				t.Errorf("%d samples, want %d", len(got[i]), len(voice))
+			}
+			rep := r.Channels()[i].FineTuner().Report()
+			if math.Abs(rep.Start-tc.off) > tolHz || math.Abs(rep.End-tc.off) > tolHz || rep.Accepted < rep.Windows*8/10 {
+				t.Errorf("%s %+g Hz, %g Hz wide: report %+v", tc.mode, tc.off, r.Channels()[i].Config().High, rep)
+			}
 		}
 		if r.Channels()[1].FineTuner() != nil {
 			t.Error("am channel has a fine tuner")

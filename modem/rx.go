@@ -198,7 +198,17 @@ func NewChannel(cfg RxConfig) (*Channel, error) {
 	// last decimator's transition band, its aliases ≥ 72 dB down instead
 	// of 80 at 2.4 MS/s (TestFineTuneAliases).
 	tune := cfg.FineTune && (cfg.Mode == USB || cfg.Mode == LSB)
-	plan, err := PlanChannel(cfg.Rate, cfg.AudioRate, 4*protect, protect, cfg.AttenDB)
+	minWork := 4 * protect
+	if tune {
+		// the estimator's band, 200 − range … 2400 + range Hz from the
+		// carrier (at −shift), must fit in the work rate with 10 % to
+		// spare (it does for the default band; a narrow --bandwidth
+		// gets a faster work rate)
+		s := math.Copysign(1, shift)
+		edge := math.Max(math.Abs(-shift+s*(tuneLowHz-DefaultTuneRange)), math.Abs(-shift+s*(tuneHighHz+DefaultTuneRange)))
+		minWork = math.Max(minWork, 2.2*edge)
+	}
+	plan, err := PlanChannel(cfg.Rate, cfg.AudioRate, minWork, protect, cfg.AttenDB)
 	if err != nil {
 		return nil, err
 	}

@@ -226,7 +226,7 @@ func NewTuneEstimator(cfg TuneConfig) (*TuneEstimator, error) {
 	fs := cfg.Rate
 	for _, u := range []float64{tuneLowHz - cfg.Range, tuneHighHz + cfg.Range} {
 		if f := cfg.Carrier + e.sign*u; !(math.Abs(f) < fs/2) {
-			return nil, fmt.Errorf("tuning band (%g…%g Hz from the carrier at %g Hz) outside the baseband ±%g Hz",
+			return nil, fmt.Errorf("tuning band (%g…%g Hz from the carrier at %.0f Hz) outside the baseband ±%.0f Hz",
 				tuneLowHz-cfg.Range, tuneHighHz+cfg.Range, cfg.Carrier, fs/2)
 		}
 	}

@@ -233,7 +233,7 @@ func runRx(e *env, args []string) error {
 	rcv, err := modem.NewReceiver(cfgs)
 	if errors.Is(err, modem.ErrFineTune) {
 		// a channel too narrow for the search, say: decode untuned
-		e.warnf("--fine-tune: %v; the given carriers are kept", err)
+		e.warnf("--fine-tune: %v; the given carriers are kept", strings.TrimPrefix(err.Error(), "fine tuning: "))
 		for i := range cfgs {
 			cfgs[i].FineTune = false
 		}
