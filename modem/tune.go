@@ -485,11 +485,43 @@ func (e *TuneEstimator) lineAtCarrier(pow []float64, eps float64) bool {
 		return false
 	}
 	copy(e.sorted, pow)
-	slices.Sort(e.sorted)
-	floor := e.sorted[len(e.sorted)/5]
+	floor := nthSmallest(e.sorted, len(e.sorted)/5)
 	near = near/float64(nn) - floor
 	voice = voice/float64(nv) - floor
 	return near > 0 && near > tuneLineFrac*voice
+}
+
+// nthSmallest returns the k-th smallest of x (from 0), reordering x:
+// Hoare's selection (Find, Comm. ACM 4(7), 1961), hand-written because
+// the standard library only sorts.
+func nthSmallest(x []float64, k int) float64 {
+	lo, hi := 0, len(x)-1
+	for lo < hi {
+		p := x[(lo+hi)/2]
+		i, j := lo, hi
+		for i <= j {
+			for x[i] < p {
+				i++
+			}
+			for x[j] > p {
+				j--
+			}
+			if i <= j {
+				x[i], x[j] = x[j], x[i]
+				i++
+				j--
+			}
+		}
+		switch {
+		case k <= j:
+			hi = j
+		case k >= i:
+			lo = i
+		default:
+			return x[k]
+		}
+	}
+	return x[k]
 }
 
 // analyse runs the frame in e.frame and adds it to hop h.
@@ -559,16 +591,20 @@ func (e *TuneEstimator) analyse(h *tuneHop) {
 	// rotation R varies smoothly enough to interpolate
 	rt := e.rt
 	h2 := len(y)
+	rtw, demod := e.rtw[:len(rt)], e.demod[:len(rt)]
 	for tau := range rt {
+		// products written out (Go's complex128 multiply also handles
+		// infinities, which costs here)
 		a := y[tau]
 		b := y[(h2-tau)&(h2-1)]
-		b = complex(real(b), -imag(b))
-		ev := a + b
-		od := a - b
-		od = complex(imag(od), -real(od)) // ·(−j)
-		x := 0.5 * (ev + e.rtw[tau]*od)
+		er, ei := real(a)+real(b), imag(a)-imag(b) // a + conj(b)
+		or, oi := imag(a)+imag(b), real(b)-real(a) // (a − conj(b))·(−j)
+		w := rtw[tau]
+		xr := 0.5 * (er + real(w)*or - imag(w)*oi)
+		xi := 0.5 * (ei + real(w)*oi + imag(w)*or)
 		// conj(x)·e^{−j2π·centre·τ/fs}
-		rt[tau] = complex(real(x), -imag(x)) * e.demod[tau]
+		d := demod[tau]
+		rt[tau] = complex(xr*real(d)+xi*imag(d), xr*imag(d)-xi*real(d))
 	}
 	// pitch: the strongest interior peak of |R| (undone the whitening's
 	// lifter) over the lag range

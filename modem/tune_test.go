@@ -278,3 +278,18 @@ func TestMovingAverage(t *testing.T) {
 		}
 	}
 }
+
+// nthSmallest agrees with sorting (its definition), duplicates included.
+func TestNthSmallest(t *testing.T) {
+	x := make([]float64, 101)
+	for i := range x {
+		x[i] = float64((i * 37) % 23)
+	}
+	want := slices.Clone(x)
+	slices.Sort(want)
+	for k := range x {
+		if got := nthSmallest(slices.Clone(x), k); got != want[k] {
+			t.Errorf("k=%d: %g, want %g", k, got, want[k])
+		}
+	}
+}
