@@ -45,6 +45,7 @@ func TestTuneDemoBand(t *testing.T) {
 			}
 			ests := e.Flush(e.Process(nil, y))
 			ok := 0
+			var worst float64
 			for _, es := range ests {
 				if !es.OK {
 					continue
@@ -53,10 +54,12 @@ func TestTuneDemoBand(t *testing.T) {
 				// the narrower's output m is the capture at (m − Delay)/rate
 				tm := es.Time() - nw.Delay()/nw.Rate()
 				want := st.OffsetHz + st.DriftHz*tm/truth.Seconds - assumed
+				worst = math.Max(worst, math.Abs(es.OffsetHz-want))
 				if d := es.OffsetHz - want; math.Abs(d) > tolHz {
 					t.Errorf("%s (carrier %+g Hz off): at %.1f s %+.1f Hz, truth %+.1f Hz", st.Label, mis, tm, es.OffsetHz, want)
 				}
 			}
+			t.Logf("%-32s tuned %+4.0f Hz off: %d of %d windows, largest error %.1f Hz", st.Label, mis, ok, len(ests), worst)
 			if float64(ok) < minOK*float64(len(ests)) {
 				t.Errorf("%s (carrier %+g Hz off): %d of %d windows accepted", st.Label, mis, ok, len(ests))
 			}
