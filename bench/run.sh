@@ -2,10 +2,11 @@
 # ssbkit side by side with the numpy/scipy references in ../shared/bench
 # (see bench/README.md). Usage:
 #
-#   bench/run.sh [rx] [kernels] [RUNS]
+#   bench/run.sh [rx] [kernels] [tune] [RUNS]
 #
 # Sections: setup (build, tools, test data), rx (decode), kernels (the
-# same decode built with and without the assembly kernels). Each section
+# same decode built with and without the assembly kernels), tune (one
+# channel with and without --fine-tune). Each section
 # times its commands alternately on the same file, RUNS times each
 # (default 3), and prints input MS/s, the ratio, CPU time and peak
 # resident memory (GNU time). The machine is shared: quote ratios from
@@ -18,9 +19,9 @@ sections=()
 runs=3
 for a in "$@"; do
 	case $a in
-	rx | kernels) sections+=("$a") ;;
+	rx | kernels | tune) sections+=("$a") ;;
 	[0-9]*) runs=$a ;;
-	*) echo "usage: $0 [rx] [kernels] [RUNS]" >&2; exit 2 ;;
+	*) echo "usage: $0 [rx] [kernels] [tune] [RUNS]" >&2; exit 2 ;;
 	esac
 done
 [ ${#sections[@]} -gt 0 ] || sections=(rx)
@@ -90,6 +91,27 @@ section_kernels() {
 		printf "  best CPU:  1 channel %.2f s (purego %.2f s), 4 channels %.2f s (purego %.2f s)\n", c1, d1, c4, d4
 		printf "  four in one pass cost %.2f single passes with the kernels, %.2f with -tags purego\n", a4/a1, b4/b1 }'
 	$PY "$refdir/check_decode.py" "$work/k_a.wav@120000" "$work/k_b.wav@120000" | sed 's/^/    /'
+}
+
+# ---------------------------------------------------------------- tune
+section_tune() {
+	echo
+	echo "== rx --fine-tune: one USB channel, 60 s of 2.4 MS/s cu8, AGC off, with and without fine tuning (goal: at most 20 % more)"
+	local a=$work/ft_off b=$work/ft_on
+	: >"$a"; : >"$b"
+	for i in $(seq "$runs"); do
+		rm -f "$work"/ft_*.wav
+		timed "ssbkit rx (run $i)" "$a" "$ssbkit" rx "$cap" --rate 2.4M --offset 120k --agc off -q -o "$work/ft_a.wav"
+		timed "ssbkit rx --fine-tune (run $i)" "$b" "$ssbkit" rx "$cap" --rate 2.4M --offset 120k --agc off -q --fine-tune -o "$work/ft_b.wav"
+	done
+	awk -v a="$(best "$a")" -v b="$(best "$b")" -v ca="$(bestcpu "$a")" -v cb="$(bestcpu "$b")" \
+		-v ma="$(median "$a")" -v mb="$(median "$b")" -v mca="$(mediancpu "$a")" -v mcb="$(mediancpu "$b")" 'BEGIN {
+		printf "  best wall:   %.3f s, with --fine-tune %.3f s: %+.1f %%\n", a, b, 100*(b/a-1)
+		printf "  median wall: %.3f s, with --fine-tune %.3f s: %+.1f %%\n", ma, mb, 100*(mb/ma-1)
+		printf "  best CPU:    %.3f s, with --fine-tune %.3f s: %+.1f %%\n", ca, cb, 100*(cb/ca-1)
+		printf "  median CPU:  %.3f s, with --fine-tune %.3f s: %+.1f %%\n", mca, mcb, 100*(mcb/mca-1) }'
+	echo "  (the capture's signals are voice-like noise, never voiced: the estimator's frames stop after the"
+	echo "  pitch search; on voice the analysis costs about 1.4 times as much, BenchmarkTuneEstimator)"
 }
 
 echo "input: $cap ($insamples samples); $(nproc) cores; load: $(cut -d' ' -f1-3 /proc/loadavg)"

@@ -107,7 +107,8 @@ func (r *Receiver) run(src SampleReader, raw io.Reader, ss int, decode func([]co
 	var flushIn int64 // capture samples of zeros that push the delayed tail out
 	for _, c := range r.chans {
 		hist = max(hist, c.first.l-1)
-		fl := int64(math.Ceil(float64(c.delay+1)*c.cfg.Rate/c.cfg.AudioRate)) + int64(c.plan.Decim)*2
+		// (a fine tuner's delay line is emptied by Channel.Flush instead)
+		fl := int64(math.Ceil(float64(c.delay-c.tuneDelay+1)*c.cfg.Rate/c.cfg.AudioRate)) + int64(c.plan.Decim)*2
 		flushIn = max(flushIn, fl)
 	}
 	nch := len(r.chans)
@@ -287,6 +288,9 @@ func (r *Receiver) run(src SampleReader, raw io.Reader, ss int, decode func([]co
 			for j := range feeds[i] {
 				if !failed {
 					audio = c.ProcessFirst(audio, j.outs[i])
+					if j.last {
+						audio = c.Flush(audio)
+					}
 					out := audio
 					d := min(skip, len(out))
 					out, skip = out[d:], skip-d
