@@ -6,6 +6,8 @@ import (
 	"fmt"
 	"math"
 	"slices"
+
+	"ssbkit/internal/fft"
 )
 
 // Tuning estimator defaults.
@@ -150,9 +152,10 @@ type TuneEstimator struct {
 	cfg     TuneConfig
 	sign    float64
 	n, m    int // frame and FFT lengths
-	plan    *fftPlan
+	fft     *fft.Radix4
 	hann    []float64
 	bins    []int     // FFT bin of each analysed band point, low to high audio frequency
+	binPos  []int32   // position of bins[i] in the transform's digit-reversed output
 	binU    []float64 // audio frequency (relative to the assumed carrier) of each
 	cLo     int       // bins[cLo:] are the comb's band (tuneLowHz and up); all go into the power
 	pow     []float64 // a window's power per bin
@@ -167,7 +170,9 @@ type TuneEstimator struct {
 	frame   []complex64
 	fill    int
 	buf     []complex128
-	plan2   *fftPlan     // half length, for the real spectrum's transform
+	fft2    *fft.Radix4  // half length, for the real spectrum's transform
+	posA    []int32      // position of bin τ of fft2 over the lags used
+	posB    []int32      // position of bin (M/2 − τ) mod M/2
 	half    []complex128 // its buffer
 	rtw     []complex128 // e^{−j2πτ/M} over the lags used
 	demod   []complex128 // e^{−j2π·centre·τ/fs} over the lags used
@@ -235,8 +240,8 @@ func NewTuneEstimator(cfg TuneConfig) (*TuneEstimator, error) {
 	for e.m < e.n*4/3 {
 		e.m *= 2
 	}
-	e.plan = newFFTPlan(e.m)
-	e.plan2 = newFFTPlan(e.m / 2)
+	e.fft = fft.NewRadix4(e.m)
+	e.fft2 = fft.NewRadix4(e.m / 2)
 	e.half = make([]complex128, e.m/2)
 	e.hann = make([]float64, e.n)
 	for i := range e.hann {
@@ -256,6 +261,10 @@ func NewTuneEstimator(cfg TuneConfig) (*TuneEstimator, error) {
 	}
 	// sort by audio frequency (LSB runs the other way, and the band may wrap)
 	sortByU(e.bins, e.binU)
+	pos := inversePerm(e.fft.Perm())
+	for _, j := range e.bins {
+		e.binPos = append(e.binPos, pos[j])
+	}
 	e.cLo = len(e.binU)
 	for i, u := range e.binU {
 		if u >= tuneLowHz {
@@ -281,6 +290,14 @@ func NewTuneEstimator(cfg TuneConfig) (*TuneEstimator, error) {
 	e.rt = make([]complex128, int(e.maxLag)+4)
 	e.rtw = make([]complex128, len(e.rt))
 	e.demod = make([]complex128, len(e.rt))
+	pos2 := inversePerm(e.fft2.Perm())
+	h2 := e.m / 2
+	e.posA = make([]int32, len(e.rt))
+	e.posB = make([]int32, len(e.rt))
+	for tau := range e.rt {
+		e.posA[tau] = pos2[tau]
+		e.posB[tau] = pos2[(h2-tau)&(h2-1)]
+	}
 	for tau := range e.rt {
 		s, c := math.Sincos(-2 * math.Pi * float64(tau) / float64(e.m))
 		e.rtw[tau] = complex(c, s)
@@ -539,16 +556,15 @@ func (e *TuneEstimator) analyse(h *tuneHop) {
 	if energy < e.level*tuneGate {
 		return
 	}
-	// the windowed frame, zero-padded, straight into bit-reversed order
+	// the windowed frame, zero-padded
 	clear(e.buf)
-	rev := e.plan.rev
 	for i, v := range e.frame {
 		w := e.hann[i]
-		e.buf[rev[i]] = complex(w*float64(real(v)), w*float64(imag(v)))
+		e.buf[i] = complex(w*float64(real(v)), w*float64(imag(v)))
 	}
-	e.plan.passes(e.buf)
+	e.fft.Transform(e.buf)
 	var total float64
-	for i, j := range e.bins {
+	for i, j := range e.binPos {
 		x := e.buf[j]
 		p := real(x)*real(x) + imag(x)*imag(x)
 		h.pow[i] += p
@@ -577,26 +593,25 @@ func (e *TuneEstimator) analyse(h *tuneHop) {
 	// X[τ] = E[τ] + e^{−j2πτ/M}·O[τ], τ < M/2.
 	y := e.half
 	clear(y)
-	rev2 := e.plan2.rev
 	for i, j := range e.bins[e.cLo:] {
 		v := e.white[i]
 		if j&1 == 0 {
-			y[rev2[j>>1]] += complex(v, 0)
+			y[j>>1] += complex(v, 0)
 		} else {
-			y[rev2[j>>1]] += complex(0, v)
+			y[j>>1] += complex(0, v)
 		}
 	}
-	e.plan2.passes(y)
+	e.fft2.Transform(y)
 	// R̃(τ) = R(τ)·e^{−j2π·centre·τ/fs}: without the band centre's
 	// rotation R varies smoothly enough to interpolate
 	rt := e.rt
-	h2 := len(y)
 	rtw, demod := e.rtw[:len(rt)], e.demod[:len(rt)]
+	posA, posB := e.posA[:len(rt)], e.posB[:len(rt)]
 	for tau := range rt {
 		// products written out (Go's complex128 multiply also handles
 		// infinities, which costs here)
-		a := y[tau]
-		b := y[(h2-tau)&(h2-1)]
+		a := y[posA[tau]]
+		b := y[posB[tau]]
 		er, ei := real(a)+real(b), imag(a)-imag(b) // a + conj(b)
 		or, oi := imag(a)+imag(b), real(b)-real(a) // (a − conj(b))·(−j)
 		w := rtw[tau]
@@ -769,4 +784,14 @@ func MovingAverage(dst, x []float64, w int) []float64 {
 		dst[j] = acc / float64(cnt)
 	}
 	return dst
+}
+
+// inversePerm returns pos with pos[perm[p]] = p: where a transform's
+// output holds each bin.
+func inversePerm(perm []int32) []int32 {
+	pos := make([]int32, len(perm))
+	for p, b := range perm {
+		pos[b] = int32(p)
+	}
+	return pos
 }

@@ -6,7 +6,6 @@ import (
 	"slices"
 	"strings"
 	"testing"
-
 )
 
 // FuzzParseRateBand: --rate and --band of sweep and splitter, and

@@ -9,17 +9,20 @@ import (
 	dspfft "github.com/mjibson/go-dsp/fft"
 	dspspectral "github.com/mjibson/go-dsp/spectral"
 	dspwindow "github.com/mjibson/go-dsp/window"
+
+	"ssbkit/internal/fft"
 )
 
 // github.com/mjibson/go-dsp, the design's listed DSP library, serves here
 // as an independent reference for the hand-written parts: its FFT, its
 // windows and its Welch estimator (spectral.Pwelch, after matplotlib's
 // psd). It is used in tests only: its FFT allocates on every call and is
-// 8 to 20 times slower than the radix-4 transform (table in fft.go).
+// 8 to 20 times slower than the radix-4 transform (table in
+// ssbkit/internal/fft).
 
 // TestRadix4AgainstGoDSP: the radix-4 FFT (AVX2 passes where the CPU has
 // them) against go-dsp's fft.FFT. Both compute the unscaled forward DFT
-// X[k] = Σ_i x[i]·e^{−j2πik/n}; radix4 leaves bin perm[p] at position p.
+// X[k] = Σ_i x[i]·e^{−j2πik/n}; Radix4 leaves bin Perm()[p] at position p.
 func TestRadix4AgainstGoDSP(t *testing.T) {
 	// Two float64 FFTs of the same sum differ by rounding growing as
 	// ε·log₂n (Oppenheim & Schafer, Discrete-Time Signal Processing,
@@ -29,12 +32,12 @@ func TestRadix4AgainstGoDSP(t *testing.T) {
 		n := 1 << lg
 		x := randomComplex(n, 100+uint64(lg))
 		want := dspfft.FFT(x)
-		f := newRadix4(n)
+		f := fft.NewRadix4(n)
 		y := append([]complex128(nil), x...)
-		f.transform(y)
+		f.Transform(y)
 		var e, m float64
 		for p, v := range y {
-			b := f.perm[p]
+			b := f.Perm()[p]
 			e = max(e, cmplx.Abs(v-want[b]))
 			m = max(m, cmplx.Abs(want[b]))
 		}
