@@ -4,6 +4,7 @@ go 1.26.8
 
 require (
 	github.com/go-audio/wav v1.1.0
+	github.com/mjibson/go-dsp v0.0.0-20180508042940-11479a337f12
 	github.com/schollz/progressbar/v3 v3.19.1
 	github.com/spf13/pflag v1.1.0
 	golang.org/x/sys v0.50.0

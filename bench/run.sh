@@ -2,11 +2,12 @@
 # ssbkit side by side with the numpy/scipy references in ../shared/bench
 # (see bench/README.md). Usage:
 #
-#   bench/run.sh [rx] [kernels] [channels] [RUNS]
+#   bench/run.sh [rx] [kernels] [tune] [channels] [RUNS]
 #
 # Sections: setup (build, tools, test data), rx (decode), kernels (the
-# same decode built with and without the assembly kernels), channels (1,
-# 32, 128 and 256 channels in one pass, side by side). Each section
+# same decode built with and without the assembly kernels), tune (one
+# channel with and without --fine-tune), channels (1, 32, 128 and 256
+# channels in one pass, side by side). Each section
 # times its commands alternately on the same file, RUNS times each
 # (default 3), and prints input MS/s, the ratio, CPU time and peak
 # resident memory (GNU time). The machine is shared: quote ratios from
@@ -19,9 +20,9 @@ sections=()
 runs=3
 for a in "$@"; do
 	case $a in
-	rx | kernels | channels) sections+=("$a") ;;
+	rx | kernels | tune | channels) sections+=("$a") ;;
 	[0-9]*) runs=$a ;;
-	*) echo "usage: $0 [rx] [kernels] [channels] [RUNS]" >&2; exit 2 ;;
+	*) echo "usage: $0 [rx] [kernels] [tune] [channels] [RUNS]" >&2; exit 2 ;;
 	esac
 done
 [ ${#sections[@]} -gt 0 ] || sections=(rx)
@@ -152,6 +153,27 @@ section_channels() {
 	"$ssbkit" rx "$cap" --rate 2.4M $(channel_offsets 128) --agc off -q -o "$work/chs/c_{freq}.wav"
 	$PY "$refdir/check_decode.py" "$work/chs/c_-300000.wav@-300000" "$work/chs/c_+120000.wav@120000" "$work/chs/c_+500000.wav@500000" | sed 's/^/    /'
 	rm -rf "$work/chs"
+}
+
+# ---------------------------------------------------------------- tune
+section_tune() {
+	echo
+	echo "== rx --fine-tune: one USB channel, 60 s of 2.4 MS/s cu8, AGC off, with and without fine tuning (goal: at most 20 % more)"
+	local a=$work/ft_off b=$work/ft_on
+	: >"$a"; : >"$b"
+	for i in $(seq "$runs"); do
+		rm -f "$work"/ft_*.wav
+		timed "ssbkit rx (run $i)" "$a" "$ssbkit" rx "$cap" --rate 2.4M --offset 120k --agc off -q -o "$work/ft_a.wav"
+		timed "ssbkit rx --fine-tune (run $i)" "$b" "$ssbkit" rx "$cap" --rate 2.4M --offset 120k --agc off -q --fine-tune -o "$work/ft_b.wav"
+	done
+	awk -v a="$(best "$a")" -v b="$(best "$b")" -v ca="$(bestcpu "$a")" -v cb="$(bestcpu "$b")" \
+		-v ma="$(median "$a")" -v mb="$(median "$b")" -v mca="$(mediancpu "$a")" -v mcb="$(mediancpu "$b")" 'BEGIN {
+		printf "  best wall:   %.3f s, with --fine-tune %.3f s: %+.1f %%\n", a, b, 100*(b/a-1)
+		printf "  median wall: %.3f s, with --fine-tune %.3f s: %+.1f %%\n", ma, mb, 100*(mb/ma-1)
+		printf "  best CPU:    %.3f s, with --fine-tune %.3f s: %+.1f %%\n", ca, cb, 100*(cb/ca-1)
+		printf "  median CPU:  %.3f s, with --fine-tune %.3f s: %+.1f %%\n", mca, mcb, 100*(mcb/mca-1) }'
+	echo "  (the capture's signals are voice-like noise, never voiced: the estimator's frames stop after the"
+	echo "  pitch search; on voice the analysis costs about 1.4 times as much, BenchmarkTuneEstimator)"
 }
 
 echo "input: $cap ($insamples samples); $(nproc) cores; load: $(cut -d' ' -f1-3 /proc/loadavg)"

@@ -35,6 +35,7 @@ type allpassSplitter struct {
 	spec   Spec
 	ai, aq []float64
 	delay  float64
+	fixed  *Fixed // with Spec.Bits
 }
 
 // thetaRatio returns θ₁(x, q)/θ₄(x, q) by their series
@@ -96,13 +97,18 @@ func newAllpass(s Spec) *allpassSplitter {
 			sp.aq = append(sp.aq, v)
 		}
 	}
-	// Group delay at the band centre by a central difference of the phase.
-	w := 2 * math.Pi * (s.Low + s.High) / 2 / s.Rate
-	const d = 1e-6
-	p1 := sp.response(w + d)
-	p0 := sp.response(w - d)
-	sp.delay = -math.Atan2(imag(p1*conj(p0)), real(p1*conj(p0))) / (2 * d)
+	sp.delay = sp.groupDelay()
 	return sp
+}
+
+// groupDelay returns the group delay at the band centre in samples, by a
+// central difference of the phase.
+func (s *allpassSplitter) groupDelay() float64 {
+	w := 2 * math.Pi * (s.spec.Low + s.spec.High) / 2 / s.spec.Rate
+	const d = 1e-6
+	p1 := s.response(w + d)
+	p0 := s.response(w - d)
+	return -math.Atan2(imag(p1*conj(p0)), real(p1*conj(p0))) / (2 * d)
 }
 
 func conj(c complex128) complex128 { return complex(real(c), -imag(c)) }
@@ -139,6 +145,9 @@ func (s *allpassSplitter) paths(w float64) (i, q complex128) {
 }
 
 func (s *allpassSplitter) NewFilter() Filter {
+	if s.fixed != nil {
+		return s.newFixedFilter()
+	}
 	f := &allpassFilter{ai: s.ai, aq: s.aq}
 	f.si = make([][4]float64, len(s.ai))
 	f.sq = make([][4]float64, len(s.aq))

@@ -40,6 +40,14 @@
 // elliptic filter (closed-form Jacobi-nome coefficients), equiripple in
 // phase over the band, one multiplication per section and sample.
 //
+// # Analog networks
+//
+// Analog (NewAnalog) is the continuous-time counterpart of the all-pass
+// pair: two chains of first-order RC all-pass sections, equiripple in
+// phase over the band, for builders of phasing exciters and receivers.
+// Series and Snap give the IEC 60063 preferred values (E6 … E192) its
+// resistors and capacitors are bought in.
+//
 // Analyze reports the minimum and mean suppression over a band, the
 // wanted-sideband ripple, delay and cost for any design, so designs of
 // different kinds compare on one footing.

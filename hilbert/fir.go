@@ -18,6 +18,9 @@ type firSplitter struct {
 	m    int       // half length M
 	h    []float64 // h[0..M], h[0] = 0
 	odd  bool      // h[m] = 0 for even m: only odd taps are stored in the filter
+	// fixed is the fixed-point form (Spec.Bits); h then holds the
+	// quantised taps.
+	fixed *Fixed
 }
 
 // IdealTap returns the ideal discrete Hilbert transformer's coefficient

@@ -23,7 +23,7 @@ type magnituder interface {
 }
 
 // magnitudes sets pos[i] = |H(f[i])| and neg[i] = |H(−f[i])|.
-func magnitudes(s Splitter, f, pos, neg []float64) {
+func magnitudes(s responder, f, pos, neg []float64) {
 	if m, ok := s.(magnituder); ok {
 		m.mags(f, pos, neg)
 		return

@@ -24,6 +24,11 @@ type Spec struct {
 	// Low and High bound the audio band in Hz the design is optimised and
 	// analysed for: 0 < Low < High < Rate/2.
 	Low, High float64
+	// Bits, when not 0, quantises the coefficients to signed Bits-bit
+	// fractions (MinBits to MaxBits) with the largest power-of-two scale
+	// that keeps the largest coefficient in range; the all-pass pair
+	// then also filters in integer arithmetic. See Fixed and Quantized.
+	Bits int
 }
 
 // Designs lists the valid design names in order.
@@ -78,19 +83,29 @@ func New(s Spec) (Splitter, error) {
 	if err := validate(s); err != nil {
 		return nil, err
 	}
+	var sp Splitter
 	switch s.Design {
 	case "rect", "hamming", "blackman", "kaiser":
-		return newWindowed(s), nil
+		sp = newWindowed(s)
 	case "equiripple":
-		return newEquiripple(s)
+		e, err := newEquiripple(s)
+		if err != nil {
+			return nil, err
+		}
+		sp = e
 	case "allpass":
-		return newAllpass(s), nil
+		sp = newAllpass(s)
 	case "fft":
-		return newFFT(s), nil
+		sp = newFFT(s)
 	case "weaver":
-		return newWeaver(s), nil
+		sp = newWeaver(s)
+	default:
+		panic("hilbert: unreachable design")
 	}
-	panic("hilbert: unreachable design")
+	if s.Bits != 0 {
+		applyBits(sp, s.Bits)
+	}
+	return sp, nil
 }
 
 func validate(s Spec) error {
@@ -108,6 +123,9 @@ func validate(s Spec) error {
 	}
 	if !(s.Low > 0 && s.Low < s.High && s.High < s.Rate/2) {
 		return fmt.Errorf("band %g:%g Hz must satisfy 0 < low < high < rate/2 = %g Hz", s.Low, s.High, s.Rate/2)
+	}
+	if s.Bits != 0 && (s.Bits < MinBits || s.Bits > MaxBits) {
+		return fmt.Errorf("coefficient bits must be %d to %d, got %d", MinBits, MaxBits, s.Bits)
 	}
 	switch s.Design {
 	case "allpass":
@@ -166,6 +184,23 @@ func Analyze(s Splitter, low, high float64) Analysis {
 	if !(low > 0 && low < high) {
 		panic("hilbert: Analyze band must satisfy 0 < low < high")
 	}
+	b := analyzeBand(s, low, high)
+	d := s.Delay()
+	b.DelaySamples = d
+	b.DelayMS = 1000 * d / s.Spec().Rate
+	b.MACsPerSample = s.MACs()
+	return b
+}
+
+// responder is anything with an analytic response H(f): the digital
+// splitters and the analog networks.
+type responder interface {
+	Response(f float64) complex128
+}
+
+// analyzeBand fills the suppression and ripple fields of an Analysis of r
+// over [low, high].
+func analyzeBand(s responder, low, high float64) Analysis {
 	var (
 		freq, pos, neg [gridPoints]float64
 		ratio          [gridPoints]float64 // |H(f)|/|H(−f)|, capped
@@ -219,14 +254,10 @@ func Analyze(s Splitter, low, high float64) Analysis {
 		b := math.Min(high, low+float64(min(i+1, gridPoints-1))*step)
 		minDB = math.Min(minDB, goldenMin(supp, a, b))
 	}
-	d := s.Delay()
 	return Analysis{
 		SuppressionMinDB:  minDB,
 		SuppressionMeanDB: sum / gridPoints,
 		RippleDB:          20 * math.Log10(gmax/gmin),
-		DelaySamples:      d,
-		DelayMS:           1000 * d / s.Spec().Rate,
-		MACsPerSample:     s.MACs(),
 	}
 }
 

@@ -18,6 +18,9 @@ type weaverSplitter struct {
 	m    int
 	h    []float64 // N taps, symmetric
 	w0   float64   // ω₀ rad/sample
+	// fixed is the fixed-point form (Spec.Bits); h then holds the
+	// quantised taps.
+	fixed *Fixed
 }
 
 func newWeaver(s Spec) *weaverSplitter {

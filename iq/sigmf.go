@@ -6,6 +6,8 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
+	"path/filepath"
 	"sort"
 	"strings"
 	"time"
@@ -30,11 +32,14 @@ type sigmfMeta struct {
 		Version     *string  `json:"core:version"`
 		Description string   `json:"core:description"`
 		NumChannels *int     `json:"core:num_channels"`
+		Dataset     *string  `json:"core:dataset"`
+		MetaOnly    bool     `json:"core:metadata_only"`
 	} `json:"global"`
 	Captures []struct {
 		SampleStart *int64   `json:"core:sample_start"`
 		Frequency   *float64 `json:"core:frequency"`
 		Datetime    string   `json:"core:datetime"`
+		HeaderBytes int64    `json:"core:header_bytes"`
 	} `json:"captures"`
 	Annotations []struct {
 		SampleStart   *int64   `json:"core:sample_start"`
@@ -46,54 +51,124 @@ type sigmfMeta struct {
 	} `json:"annotations"`
 }
 
+// maxFrequency bounds a centre frequency read from metadata (1 THz; no
+// radio capture comes near it).
+const maxFrequency = 1e12
+
 // ReadSigMFMeta parses SigMF metadata from r; name is used in errors. It
 // requires the global object with a supported core:datatype; a missing
 // core:sample_rate leaves Rate 0. The centre frequency and date come from
-// the first capture segment. Invalid JSON is reported with its line and
-// column.
+// the first capture segment. Segments out of order, duplicate keys, a
+// negative centre frequency and non-conforming datasets
+// (core:header_bytes, core:metadata_only) are refused. Invalid JSON is reported with its line and column.
 func ReadSigMFMeta(r io.Reader, name string) (Meta, error) {
+	m, _, err := readSigMFMeta(r, name)
+	return m, err
+}
+
+// sigmfExtra is what the reader of a recording checks against its data
+// file once it knows its length.
+type sigmfExtra struct {
+	dataset  *string // core:dataset
+	captures []int64 // core:sample_start of each capture segment
+	annEnds  []int64 // core:sample_start + core:sample_count of each annotation
+}
+
+// checkDataset refuses a core:dataset other than the recording's own
+// data file: one outside the metadata's folder, or a non-conforming
+// dataset (SigMF v1.0.0), which ssbkit does not read.
+func (x sigmfExtra) checkDataset(metaPath, dataPath string) error {
+	if x.dataset == nil {
+		return nil
+	}
+	d := *x.dataset
+	switch {
+	case d == filepath.Base(dataPath):
+		return nil
+	case d == "" || strings.ContainsAny(d, `/\`) || d == "." || d == "..":
+		return formatErr(metaPath, -1, "core:dataset %s points outside the metadata's folder; refused", quote(d))
+	}
+	return &UnsupportedError{File: metaPath, What: "core:dataset " + quote(d) + " (a non-conforming dataset; ssbkit reads " + filepath.Base(dataPath) + ")"}
+}
+
+// checkLength refuses capture segments and annotations that begin or end
+// beyond the samples of the data file: a cut data file, or a wrong one.
+func (x sigmfExtra) checkLength(metaPath, dataPath string, samples int64) error {
+	for i, s := range x.captures {
+		if s >= samples && !(i == 0 && s == 0) {
+			return formatErr(metaPath, -1, "captures[%d] begins at sample %d but %s holds %s (cut file?)", i, s, filepath.Base(dataPath), plural(samples, "sample"))
+		}
+	}
+	for i, e := range x.annEnds {
+		if e > samples {
+			return formatErr(metaPath, -1, "annotations[%d] runs to sample %d but %s holds %s (cut file?)", i, e, filepath.Base(dataPath), plural(samples, "sample"))
+		}
+	}
+	return nil
+}
+
+func readSigMFMeta(r io.Reader, name string) (Meta, sigmfExtra, error) {
 	m := Meta{Container: ContainerSigMF, Samples: -1}
+	var x sigmfExtra
 	data, err := io.ReadAll(io.LimitReader(r, maxSigMFMeta+1))
 	if err != nil {
-		return m, fmt.Errorf("%s: %w", name, err)
+		return m, x, fmt.Errorf("%s: %w", name, err)
 	}
 	if len(data) > maxSigMFMeta {
-		return m, formatErr(name, -1, "metadata larger than %d bytes", maxSigMFMeta)
+		return m, x, formatErr(name, -1, "metadata larger than %d bytes", maxSigMFMeta)
 	}
 	if len(bytes.TrimSpace(data)) == 0 {
-		return m, formatErr(name, -1, "empty metadata file")
+		return m, x, formatErr(name, -1, "empty metadata file")
 	}
 	var sm sigmfMeta
 	if err := json.Unmarshal(data, &sm); err != nil {
-		return m, jsonError(name, data, err)
+		return m, x, jsonError(name, data, err)
+	}
+	if err := duplicateKey(name, data); err != nil {
+		return m, x, err
 	}
 	if sm.Global == nil {
-		return m, formatErr(name, -1, "no \"global\" object")
+		return m, x, formatErr(name, -1, "no \"global\" object")
 	}
 	g := sm.Global
 	if g.Datatype == nil {
-		return m, formatErr(name, -1, "no global \"core:datatype\"")
+		return m, x, formatErr(name, -1, "no global \"core:datatype\"")
 	}
 	dt := Datatype(*g.Datatype)
 	if !dt.Valid() {
-		return m, &UnsupportedError{File: name, What: "SigMF core:datatype " + quote(*g.Datatype) + " (known: cu8, ci8, ci16_le, cf32_le, rf32_le, ri16_le)"}
+		return m, x, &UnsupportedError{File: name, What: "SigMF core:datatype " + quote(*g.Datatype) + " (known: cu8, ci8, ci16_le, cf32_le, rf32_le, ri16_le)"}
 	}
 	if g.NumChannels != nil && *g.NumChannels != 1 {
-		return m, &UnsupportedError{File: name, What: fmt.Sprintf("SigMF core:num_channels %d (want 1)", *g.NumChannels)}
+		return m, x, &UnsupportedError{File: name, What: fmt.Sprintf("SigMF core:num_channels %d (want 1)", *g.NumChannels)}
 	}
+	if g.MetaOnly {
+		return m, x, formatErr(name, -1, "core:metadata_only is true: the recording has no samples")
+	}
+	x.dataset = g.Dataset
 	m.Datatype = dt
 	m.Real = dt.IsReal()
 	if g.SampleRate != nil {
 		if !(*g.SampleRate > 0) || *g.SampleRate > 1e12 {
-			return m, formatErr(name, -1, "core:sample_rate %g is not a positive rate", *g.SampleRate)
+			return m, x, formatErr(name, -1, "core:sample_rate %g is not a positive rate", *g.SampleRate)
 		}
 		m.Rate = *g.SampleRate
 	}
 	m.Description = g.Description
 	for i, c := range sm.Captures {
-		if c.SampleStart == nil {
-			return m, formatErr(name, -1, "captures[%d] has no \"core:sample_start\"", i)
+		switch {
+		case c.SampleStart == nil:
+			return m, x, formatErr(name, -1, "captures[%d] has no \"core:sample_start\"", i)
+		case *c.SampleStart < 0:
+			return m, x, formatErr(name, -1, "captures[%d] core:sample_start %d is negative", i, *c.SampleStart)
+		case i > 0 && *c.SampleStart <= *sm.Captures[i-1].SampleStart:
+			// SigMF v1.0.0: captures sorted by core:sample_start.
+			return m, x, formatErr(name, -1, "captures[%d] core:sample_start %d does not come after captures[%d]'s %d", i, *c.SampleStart, i-1, *sm.Captures[i-1].SampleStart)
+		case c.HeaderBytes != 0:
+			return m, x, &UnsupportedError{File: name, What: fmt.Sprintf("captures[%d] core:header_bytes %d (a non-conforming dataset)", i, c.HeaderBytes)}
+		case c.Frequency != nil && !(*c.Frequency >= 0 && *c.Frequency < maxFrequency):
+			return m, x, formatErr(name, -1, "captures[%d] core:frequency %g Hz is not a centre frequency (want 0 to 1 THz)", i, *c.Frequency)
 		}
+		x.captures = append(x.captures, *c.SampleStart)
 	}
 	if len(sm.Captures) > 0 {
 		c := sm.Captures[0]
@@ -103,17 +178,17 @@ func ReadSigMFMeta(r io.Reader, name string) (Meta, error) {
 		if c.Datetime != "" {
 			t, err := time.Parse(time.RFC3339Nano, c.Datetime)
 			if err != nil {
-				return m, formatErr(name, -1, "captures[0] core:datetime %q is not ISO 8601 (want e.g. 2024-05-01T12:00:00Z)", c.Datetime)
+				return m, x, formatErr(name, -1, "captures[0] core:datetime %q is not ISO 8601 (want e.g. 2024-05-01T12:00:00Z)", c.Datetime)
 			}
 			m.Datetime = t
 		}
 	}
 	for i, a := range sm.Annotations {
 		if a.SampleStart == nil {
-			return m, formatErr(name, -1, "annotations[%d] has no \"core:sample_start\"", i)
+			return m, x, formatErr(name, -1, "annotations[%d] has no \"core:sample_start\"", i)
 		}
 		if *a.SampleStart < 0 || a.SampleCount != nil && *a.SampleCount < 0 {
-			return m, formatErr(name, -1, "annotations[%d] has a negative sample start or count", i)
+			return m, x, formatErr(name, -1, "annotations[%d] has a negative sample start or count", i)
 		}
 		an := Annotation{SampleStart: *a.SampleStart, Label: a.Label, Comment: a.Comment}
 		if a.SampleCount != nil {
@@ -125,9 +200,67 @@ func ReadSigMFMeta(r io.Reader, name string) (Meta, error) {
 		if a.FreqUpperEdge != nil {
 			an.FreqUpperEdge = *a.FreqUpperEdge
 		}
+		if an.FreqLowerEdge > an.FreqUpperEdge {
+			return m, x, formatErr(name, -1, "annotations[%d] core:freq_lower_edge %g is above core:freq_upper_edge %g", i, an.FreqLowerEdge, an.FreqUpperEdge)
+		}
+		end := an.SampleStart + an.SampleCount
+		if end < an.SampleStart { // overflow
+			end = math.MaxInt64
+		}
+		x.annEnds = append(x.annEnds, end)
 		m.Annotations = append(m.Annotations, an)
 	}
-	return m, nil
+	return m, x, nil
+}
+
+// duplicateKey reports an object of the JSON document data (already
+// known valid) that holds a key twice. encoding/json would keep the last
+// value (and matches keys regardless of case), so a file saying two
+// things about one field is refused rather than read as one of them.
+func duplicateKey(name string, data []byte) error {
+	d := json.NewDecoder(bytes.NewReader(data))
+	// One entry per open object or array: the keys seen (nil for an
+	// array) and whether the next string token is a key.
+	type level struct {
+		keys  map[string]bool
+		isKey bool
+	}
+	var stack []level
+	for {
+		tok, err := d.Token()
+		if err != nil {
+			return nil // the end (the document was checked valid)
+		}
+		top := len(stack) - 1
+		switch v := tok.(type) {
+		case json.Delim:
+			switch v {
+			case '{':
+				stack = append(stack, level{keys: map[string]bool{}, isKey: true})
+				continue
+			case '[':
+				stack = append(stack, level{})
+				continue
+			default:
+				stack = stack[:top]
+			}
+		case string:
+			if top >= 0 && stack[top].keys != nil && stack[top].isKey {
+				k := strings.ToLower(v)
+				if stack[top].keys[k] {
+					line, col := lineCol(data, d.InputOffset())
+					return formatErr(name, -1, "key %s appears twice in one object (line %d, column %d)", quote(v), line, col)
+				}
+				stack[top].keys[k] = true
+				stack[top].isKey = false
+				continue
+			}
+		}
+		// A value ended: the next string in an object is a key.
+		if top = len(stack) - 1; top >= 0 && stack[top].keys != nil {
+			stack[top].isKey = true
+		}
+	}
 }
 
 // jsonError turns a decoding error into a FormatError that says where.

@@ -146,6 +146,9 @@ func Open(path string, opt Options) (*Source, error) {
 // openFile opens a regular file and returns its size; an empty file is
 // an error.
 func openFile(path string) (*os.File, int64, error) {
+	if err := checkRegular(path); err != nil {
+		return nil, 0, err
+	}
 	f, err := os.Open(path)
 	if err != nil {
 		return nil, 0, errorWithoutOp(path, err)
@@ -155,15 +158,34 @@ func openFile(path string) (*os.File, int64, error) {
 		f.Close()
 		return nil, 0, errorWithoutOp(path, err)
 	}
-	if st.IsDir() {
-		f.Close()
-		return nil, 0, fmt.Errorf("%s: is a folder", path)
-	}
 	if st.Size() == 0 {
 		f.Close()
 		return nil, 0, formatErr(path, -1, "empty file")
 	}
 	return f, st.Size(), nil
+}
+
+// checkRegular refuses what is not a regular file before it is opened:
+// opening a named pipe blocks until a writer comes, a device such as
+// /dev/zero never ends, and both would be read once where commands read
+// a capture twice. Standard input ("-") takes a stream.
+func checkRegular(path string) error {
+	st, err := os.Stat(path)
+	if err != nil {
+		return errorWithoutOp(path, err)
+	}
+	m := st.Mode()
+	switch {
+	case m.IsRegular():
+		return nil
+	case m.IsDir():
+		return fmt.Errorf("%s: is a folder", path)
+	case m&os.ModeNamedPipe != 0:
+		return fmt.Errorf("%s: is a named pipe, not a file: pipe it to standard input instead (- with --format and --rate)", path)
+	case m&os.ModeDevice != 0:
+		return fmt.Errorf("%s: is a device, not a file: copy a bounded part to a file, or read it as standard input (- with --format and --rate)", path)
+	}
+	return fmt.Errorf("%s: is not a regular file (%v)", path, m.Type())
 }
 
 // errorWithoutOp reports a *PathError as "path: reason".
@@ -194,7 +216,7 @@ func newRawSource(name string, r io.Reader, opt Options, size int64) (*Source, e
 	}
 	ss := dt.SampleSize()
 	if size >= 0 && size%int64(ss) != 0 {
-		return nil, formatErr(name, -1, "size %d bytes is not a whole number of %d-byte %s samples (%s left over): wrong --format or a cut file", size, ss, dt, plural(size%int64(ss), "byte"))
+		return nil, formatErr(name, -1, "size %s is not a whole number of %d-byte %s samples (%s left over): wrong --format or a cut file", plural(size, "byte"), ss, dt, plural(size%int64(ss), "byte"))
 	}
 	m := Meta{Datatype: dt, Rate: opt.Rate, Center: opt.Center, HasCenter: opt.HasCenter, Real: dt.IsReal(), Samples: -1, Container: ContainerRaw}
 	if size >= 0 {
@@ -224,29 +246,57 @@ func newSource(name string, r io.Reader, m Meta, layout Datatype, size int64) *S
 	return s
 }
 
-func openWAV(path string, opt Options) (*Source, error) {
+// CheckWAV reads the header of the WAV file at path and checks it
+// against the file as Open does (a regular file; 1 or 2 channels of 16-
+// or 24-bit PCM or 32-bit float; a data chunk of whole frames within the
+// file), without reading the samples. Errors name the file and the fault.
+func CheckWAV(path string) error {
+	f, _, err := openWAVFile(path)
+	if err != nil {
+		return err
+	}
+	return f.Close()
+}
+
+// openWAVFile opens a WAV file, reads and checks its header and leaves
+// the file positioned at the first sample.
+func openWAVFile(path string) (*os.File, wavHeader, error) {
 	f, size, err := openFile(path)
 	if err != nil {
-		return nil, err
+		return nil, wavHeader{}, err
 	}
 	h, err := readWAVHeader(f, path)
+	if err == nil {
+		err = h.check(path, size)
+	}
 	if err != nil {
 		f.Close()
-		return nil, err
+		return nil, h, err
 	}
+	return f, h, nil
+}
+
+// check checks the data chunk against a file of size bytes.
+func (h wavHeader) check(path string, size int64) error {
 	if h.DataOffset+h.DataSize > size {
-		f.Close()
-		return nil, formatErr(path, h.DataOffset-4, "data chunk of %d bytes runs past the end of the %d-byte file (cut file?)", h.DataSize, size)
+		return formatErr(path, h.DataOffset-4, "data chunk of %d bytes runs past the end of the %d-byte file (cut file?)", h.DataSize, size)
 	}
 	fs := int64(h.frameSize())
 	if h.DataSize%fs != 0 {
-		f.Close()
-		return nil, formatErr(path, h.DataOffset-4, "data chunk of %d bytes is not a whole number of %d-byte frames", h.DataSize, fs)
+		return formatErr(path, h.DataOffset-4, "data chunk of %d bytes is not a whole number of %d-byte frames", h.DataSize, fs)
 	}
 	if h.DataSize == 0 {
-		f.Close()
-		return nil, formatErr(path, h.DataOffset, "no samples")
+		return formatErr(path, h.DataOffset, "no samples")
 	}
+	return nil
+}
+
+func openWAV(path string, opt Options) (*Source, error) {
+	f, h, err := openWAVFile(path)
+	if err != nil {
+		return nil, err
+	}
+	fs := int64(h.frameSize())
 	var layout, dt Datatype
 	switch {
 	case h.Channels == 2 && h.Float:
@@ -278,13 +328,19 @@ func openSigMF(path string, opt Options) (*Source, error) {
 		}
 	}
 	metaPath, dataPath := SigMFPaths(path)
+	if err := checkRegular(metaPath); err != nil {
+		return nil, err
+	}
 	mf, err := os.Open(metaPath)
 	if err != nil {
 		return nil, errorWithoutOp(metaPath, err)
 	}
-	m, err := ReadSigMFMeta(mf, metaPath)
+	m, x, err := readSigMFMeta(mf, metaPath)
 	mf.Close()
 	if err != nil {
+		return nil, err
+	}
+	if err := x.checkDataset(metaPath, dataPath); err != nil {
 		return nil, err
 	}
 	if m.Rate == 0 {
@@ -303,9 +359,13 @@ func openSigMF(path string, opt Options) (*Source, error) {
 	ss := int64(m.Datatype.SampleSize())
 	if size%ss != 0 {
 		f.Close()
-		return nil, formatErr(dataPath, -1, "size %d bytes is not a whole number of %d-byte %s samples (%s left over)", size, ss, m.Datatype, plural(size%ss, "byte"))
+		return nil, formatErr(dataPath, -1, "size %s is not a whole number of %d-byte %s samples (%s left over)", plural(size, "byte"), ss, m.Datatype, plural(size%ss, "byte"))
 	}
 	m.Samples = size / ss
+	if err := x.checkLength(metaPath, dataPath, m.Samples); err != nil {
+		f.Close()
+		return nil, err
+	}
 	s := newSource(dataPath, f, m, m.Datatype, size)
 	s.f = f
 	return s, nil

@@ -42,8 +42,20 @@ func TestOpenBad(t *testing.T) {
 		// The SigMF archive format (SigMF Specification v1.0.0: a tar
 		// file with extension .sigmf) is not read.
 		{write("rec.sigmf", make([]byte, 1024)), Options{}, "rec.sigmf: unsupported SigMF archive"},
+		// A key given twice (encoding/json would keep the last, matching
+		// case-insensitively) is refused.
+		{write("dup.sigmf-meta", []byte(`{"global":{"core:datatype":"cu8","Core:Datatype":"ci16_le"}}`)), Options{}, `key "Core:Datatype" appears twice`},
+		// SigMF Specification v1.0.0: captures sorted by core:sample_start;
+		// core:dataset names a non-conforming dataset (refused, and never
+		// followed out of the metadata's folder).
+		{write("order.sigmf-meta", []byte(`{"global":{"core:datatype":"cu8"},"captures":[{"core:sample_start":5},{"core:sample_start":5}]}`)), Options{}, "captures[1] core:sample_start 5 does not come after"},
+		{write("away.sigmf-meta", []byte(`{"global":{"core:datatype":"cu8","core:dataset":"/etc/passwd"}}`)), Options{}, "points outside the metadata's folder"},
+		{write("beyond.sigmf-meta", []byte(`{"global":{"core:datatype":"cu8","core:sample_rate":1},"annotations":[{"core:sample_start":2,"core:sample_count":9223372036854775807}]}`)), Options{}, "annotations[0] runs to sample 9223372036854775807 but beyond.sigmf-data holds 6 samples"},
+		{write("ext.wav", wavBytesGUID(wavBytes(wavExtensible, 2, 16, 8000, wavPCM, make([]byte, 8)), 0x72)), Options{}, "unsupported WAV sub-format {00000001-0000-0010-8000-00AA00389B72}"},
+		{"/dev/zero", Options{Format: CU8, Rate: 1}, "/dev/zero: is a device"},
 	}
 	write("cut.sigmf-data", make([]byte, 12))
+	write("beyond.sigmf-data", make([]byte, 12))
 	for _, c := range cases {
 		_, err := Open(c.path, c.opt)
 		if err == nil {
@@ -228,4 +240,12 @@ func TestReadWriteAllocs(t *testing.T) {
 	if a := testing.AllocsPerRun(50, func() { ww.Write(src) }); a != 0 {
 		t.Errorf("WAV Write allocates %v times per block", a)
 	}
+}
+
+// wavBytesGUID returns the WAVE_FORMAT_EXTENSIBLE file b with the last
+// byte of its sub-format GUID set to last.
+func wavBytesGUID(b []byte, last byte) []byte {
+	i := bytes.Index(b, []byte{0x00, 0x38, 0x9B, 0x71})
+	b[i+3] = last
+	return b
 }

@@ -23,6 +23,17 @@ const (
 	wavExtensible = 0xFFFE
 )
 
+// wavGUIDBase is bytes 2 to 15 of the KSDATAFORMAT_SUBTYPE GUIDs
+// {0000XXXX-0000-0010-8000-00AA00389B71} as stored in a WAVE_FORMAT_EXTENSIBLE
+// fmt chunk (Microsoft's mmreg.h, common practice), XXXX the format tag.
+const wavGUIDBase = "\x00\x00\x00\x00\x10\x00\x80\x00\x00\xaa\x00\x38\x9b\x71"
+
+// guidString formats the 16 bytes of a GUID stored little-endian.
+func guidString(g []byte) string {
+	le := binary.LittleEndian
+	return fmt.Sprintf("{%08X-%04X-%04X-%X-%X}", le.Uint32(g[0:4]), le.Uint16(g[4:6]), le.Uint16(g[6:8]), g[8:10], g[10:16])
+}
+
 // wavHeader is what ssbkit needs of a WAV file's header.
 type wavHeader struct {
 	Channels   int
@@ -86,10 +97,15 @@ func readWAVHeader(r io.Reader, name string) (wavHeader, error) {
 			blockAlign := int(binary.LittleEndian.Uint16(b[12:14]))
 			h.Bits = int(binary.LittleEndian.Uint16(b[14:16]))
 			if tag == wavExtensible {
-				if n < 26 {
+				if n < 40 {
 					return h, formatErr(name, off, "WAVE_FORMAT_EXTENSIBLE fmt chunk too short")
 				}
-				tag = binary.LittleEndian.Uint16(b[24:26]) // first two bytes of the sub-format GUID
+				// The sub-format GUID: a format tag in the first two
+				// bytes of the standard base GUID; any other is unknown.
+				if string(b[26:40]) != wavGUIDBase {
+					return h, &UnsupportedError{File: name, What: "WAV sub-format " + guidString(b[24:40]) + " (want PCM or IEEE float)"}
+				}
+				tag = binary.LittleEndian.Uint16(b[24:26])
 			}
 			switch {
 			case tag == wavPCM && (h.Bits == 16 || h.Bits == 24):

@@ -1,6 +1,10 @@
 package modem
 
-import "math"
+import (
+	"math"
+
+	"ssbkit/internal/fft"
+)
 
 // bankFFT is the forward DFT of the Channeliser, four transforms at once:
 //
@@ -11,7 +15,7 @@ import "math"
 // of four complex64 — and no data moves between lanes. The passes are
 // radix-4 decimation in frequency (E. O. Brigham, The Fast Fourier
 // Transform and Its Applications, 1988, ch. 10, as the radix-4 transform
-// of package spectral, which is complex128 and one transform at a time):
+// of internal/fft, which is complex128 and one transform at a time):
 // one pass over a block of length L = 4m computes, for i < m and
 // W_L = e^{−j2π/L},
 //
@@ -48,24 +52,13 @@ func newBankFFT(m int) *bankFFT {
 		}
 		f.tw = append(f.tw, t)
 	}
-	for p := range m {
-		f.pos[bankBinAt(p, m)] = int32(p)
+	// the passes leave the bins in the digit-reversed order of
+	// internal/fft's radix-4 transform (the same decimation in frequency,
+	// radix-2 last when log₂M is odd)
+	for p, k := range fft.NewRadix4(m).Perm() {
+		f.pos[k] = int32(p)
 	}
 	return f
-}
-
-// bankBinAt returns the bin left at position p of a block of length l by
-// the passes: position p lies in quarter q = p/(l/4), which holds the
-// bins ≡ q (mod 4) in the order of the quarter's own transform.
-func bankBinAt(p, l int) int {
-	switch l {
-	case 1:
-		return 0
-	case 2:
-		return p
-	}
-	m := l / 4
-	return p/m + 4*bankBinAt(p%m, m)
 }
 
 // transform computes the four DFTs of x[:4m] in place (digit-reversed).

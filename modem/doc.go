@@ -124,6 +124,18 @@
 // Narrower reuses the same stages to bring one frequency down to a narrow
 // rate for analysis (package spectral's measurement).
 //
+// # Tuning by the voice
+//
+// An SSB signal has no carrier to tune to. TuneEstimator finds the
+// carrier error of a voice channel from its baseband: voiced speech is a
+// set of harmonics k·f0, which a mistuning by δ moves to k·f0 + δ. The
+// phases of the frame's (compressed, whitened) spectral autocorrelation
+// at the pitch period's multiples rotate by 2π·δ·m/f0, which gives δ
+// modulo f0 in every voiced frame; the pitch changes from frame to frame
+// and δ does not, so the frames of a window of a few seconds agree on
+// one δ only. Windows without voice, or whose pitch never moves, give no
+// estimate; a sequence of windows is a drift track.
+//
 // # Kernels
 //
 // The hot loops of both chains have AVX2/FMA kernels in Go assembly, built

@@ -184,13 +184,13 @@ func bankChains(cfgs []RxConfig, p bankPlan) (*Channeliser, []int, []*Channel, e
 // channel has its own first stage.
 func (r *Receiver) Channeliser() *Channeliser { return r.bank }
 
-// bankFlush is the number of capture samples of zeros that push the
+// flushSamples is the number of capture samples of zeros that push the
 // delayed tail of channel c out, through the Channeliser when there is
-// one.
+// one (a fine tuner's delay line is emptied by Channel.Flush instead).
 func (r *Receiver) flushSamples(c *Channel) int64 {
 	in := int64(1)
 	if r.bank != nil {
 		in = int64(r.bank.Decim())
 	}
-	return int64(math.Ceil(float64(c.delay+1)*c.cfg.Rate/c.cfg.AudioRate)) + int64(c.plan.Decim)*in*2
+	return int64(math.Ceil(float64(c.delay-c.tuneDelay+1)*c.cfg.Rate/c.cfg.AudioRate)) + int64(c.plan.Decim)*in*2
 }

@@ -373,6 +373,9 @@ func (r *Receiver) run(src SampleReader, raw io.Reader, ss int, decode func([]co
 					} else {
 						audio = c.ProcessFirst(audio, j.outs[i])
 					}
+					if j.last {
+						audio = c.Flush(audio)
+					}
 					out := audio
 					d := min(skip, len(out))
 					out, skip = out[d:], skip-d

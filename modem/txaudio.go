@@ -65,6 +65,9 @@ func OpenAudio(name string) (*AudioFile, error) {
 }
 
 func openAudio(f *os.File, name string) (*AudioFile, error) {
+	if err := checkChunkSizes(f, name); err != nil {
+		return nil, err
+	}
 	d := wav.NewDecoder(f)
 	if !d.IsValidFile() {
 		return nil, fmt.Errorf("%s: not a WAV audio file", name)
@@ -97,6 +100,42 @@ func openAudio(f *os.File, name string) (*AudioFile, error) {
 		return nil, fmt.Errorf("%s: no audio samples", name)
 	}
 	return a, nil
+}
+
+// maxFmtChunk bounds the fmt chunk; real ones are 16 to 40 bytes.
+const maxFmtChunk = 1 << 10
+
+// checkChunkSizes refuses a RIFF file whose chunks before the data chunk
+// claim more bytes than the file holds, or whose fmt chunk is larger than
+// maxFmtChunk: go-audio/wav v1.1.0 allocates (and the runtime zeroes) a
+// fmt chunk's declared size before reading it, gigabytes for a damaged
+// header, which stalled the fuzzer. Files that are not RIFF are left to
+// the decoder to refuse.
+func checkChunkSizes(f *os.File, name string) error {
+	st, err := f.Stat()
+	if err != nil {
+		return fmt.Errorf("%s: %w", name, err)
+	}
+	size := st.Size()
+	var h [12]byte
+	if _, err := f.ReadAt(h[:], 0); err != nil || string(h[:4]) != "RIFF" || string(h[8:]) != "WAVE" {
+		return nil
+	}
+	var c [8]byte
+	for off := int64(12); off+8 <= size; {
+		if _, err := f.ReadAt(c[:], off); err != nil {
+			return fmt.Errorf("%s: %w", name, err)
+		}
+		id, n := string(c[:4]), int64(binary.LittleEndian.Uint32(c[4:]))
+		if id == "data" {
+			return nil
+		}
+		if n > size-off-8 || id == "fmt " && n > maxFmtChunk {
+			return fmt.Errorf("%s: byte %d: %q chunk of %d bytes does not fit the %d-byte file", name, off+4, id, n, size)
+		}
+		off += 8 + n + n%2
+	}
+	return nil
 }
 
 // Rate returns the sample rate in Hz.

@@ -125,6 +125,12 @@ func TestOpenAudioErrors(t *testing.T) {
 		{"eight.wav", wavBytes(1, 1, 8, 48000, []float64{0, 0}), "unsupported"},
 		{"slow.wav", wavBytes(1, 1, 16, 4000, []float64{0, 0}), "outside 8 to 192 kHz"},
 		{"zero.wav", nil, "not a WAV"},
+		// A fmt chunk claiming 4 GiB (go-audio/wav would allocate it).
+		{"fmt4g.wav", func() []byte {
+			b := wavBytes(1, 1, 16, 48000, []float64{0, 0})
+			copy(b[16:20], []byte{0xf0, 0xff, 0xff, 0xff})
+			return b
+		}(), `"fmt " chunk of 4294967280 bytes does not fit`},
 	} {
 		p := writeTemp(t, c.name, c.b)
 		_, err := OpenAudio(p)

@@ -157,6 +157,20 @@ func (b *BandSignal) Read(dst []complex64) (int, error) {
 	return len(dst), nil
 }
 
+// ReadAll returns the rest of the capture in one slice (24 s at 48 kHz
+// is 9 MB; Read streams a longer scene).
+func (b *BandSignal) ReadAll() []complex64 {
+	x := make([]complex64, b.total-b.n)
+	for k := 0; k < len(x); {
+		n, _ := b.Read(x[k:])
+		if n == 0 {
+			break
+		}
+		k += n
+	}
+	return x
+}
+
 // stationGen makes one station's complex baseband at the capture rate.
 type stationGen struct {
 	st    Station

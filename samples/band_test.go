@@ -128,3 +128,36 @@ func BenchmarkBench(b *testing.B) {
 		s.Read(buf)
 	}
 }
+
+// ReadAll returns what Read would, to the end (the scene is seeded).
+func TestBandReadAll(t *testing.T) {
+	cfg := DefaultBandConfig()
+	cfg.Seconds = 1
+	a, _ := NewBand(cfg)
+	b, _ := NewBand(cfg)
+	head := make([]complex64, 777)
+	if n, _ := a.Read(head); n != len(head) {
+		t.Fatalf("read %d", n)
+	}
+	got := append(head, a.ReadAll()...)
+	var want []complex64
+	buf := make([]complex64, 1000)
+	for {
+		n, err := b.Read(buf)
+		want = append(want, buf[:n]...)
+		if err == io.EOF {
+			break
+		}
+	}
+	if int64(len(got)) != a.Samples() || len(got) != len(want) {
+		t.Fatalf("%d samples, want %d", len(got), len(want))
+	}
+	for i := range got {
+		if got[i] != want[i] {
+			t.Fatalf("sample %d: %v, want %v", i, got[i], want[i])
+		}
+	}
+	if rest := a.ReadAll(); len(rest) != 0 {
+		t.Errorf("%d samples after the end", len(rest))
+	}
+}

@@ -40,12 +40,9 @@ func (cf *captureFlags) options(e *env) (iq.Options, error) {
 		opt.Format = dt
 	}
 	if cf.rate != "" {
-		r, err := iq.ParseFrequency(cf.rate)
+		r, err := parseRate("--rate", cf.rate)
 		if err != nil {
-			return opt, usagef("--rate: %v", err)
-		}
-		if r <= 0 {
-			return opt, usagef("--rate: must be positive")
+			return opt, err
 		}
 		opt.Rate = r
 	}
@@ -71,6 +68,14 @@ func openCapture(e *env, path string, cf *captureFlags) (*iq.Source, error) {
 	src, err := iq.Open(path, opt)
 	if err != nil {
 		return nil, err
+	}
+	if m := src.Meta(); !(m.Rate >= minRate && m.Rate <= maxRate) {
+		src.Close()
+		name := path // the file the rate came from (metadata, not data)
+		if path == "-" {
+			name = src.Name()
+		}
+		return nil, fmt.Errorf("%s: sample rate %.10g Hz is out of range (ssbkit reads rates %s)", name, m.Rate, rateRange)
 	}
 	if m := src.Meta(); m.Container != iq.ContainerRaw {
 		if opt.Format != "" && opt.Format != m.Datatype {
@@ -161,9 +166,10 @@ func openCaptureOut(stdout io.Writer, target string, meta iq.Meta, opt captureOp
 		dt = iq.CF32
 	}
 	if target == "-" {
-		var out io.Writer = stdout
+		c.target = outName(target)
+		var out io.Writer = stdoutWriter{stdout}
 		if opt.writeBehind {
-			c.sink = newFileSink(stdout)
+			c.sink = newFileSink(out)
 			out = c.sink
 		}
 		w, err := iq.NewRawWriter(out, dt)
@@ -215,7 +221,7 @@ func openCaptureOut(stdout io.Writer, target string, meta iq.Meta, opt captureOp
 	}
 	var dst io.WriteSeeker = d
 	if opt.writeBehind {
-		c.sink = newFileSink(d.File)
+		c.sink = newFileSink(d)
 		dst = c.sink
 	}
 	w, err := iq.NewWriter(dst, kind, dt, meta.Rate)
@@ -225,6 +231,23 @@ func openCaptureOut(stdout io.Writer, target string, meta iq.Meta, opt captureOp
 	}
 	c.Writer = w
 	return c, nil
+}
+
+// outName names an output in messages: "standard output" for "-".
+func outName(target string) string {
+	if target == "-" {
+		return "standard output"
+	}
+	return target
+}
+
+// stdoutWriter passes writes to standard output with the *PathError
+// ("write /dev/stdout: …") dropped: the message names standard output.
+type stdoutWriter struct{ w io.Writer }
+
+func (s stdoutWriter) Write(p []byte) (int, error) {
+	n, err := s.w.Write(p)
+	return n, unwrapPath(err)
 }
 
 // sigmfPartners returns the other file of each SigMF input pair, so that

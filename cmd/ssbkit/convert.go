@@ -118,7 +118,7 @@ func runConvert(e *env, args []string) error {
 				corr.Process(blk, blk)
 			}
 			if _, err := w.Write(blk); err != nil {
-				return fmt.Errorf("%s: %w", out, err)
+				return fmt.Errorf("%s: %w", outName(out), err)
 			}
 			bar.Add(n)
 		}
@@ -130,7 +130,7 @@ func runConvert(e *env, args []string) error {
 		}
 	}
 	if w.Samples() == 0 {
-		return fmt.Errorf("%s: no samples", in)
+		return fmt.Errorf("%s: no samples", src.Name())
 	}
 	return w.Commit()
 }

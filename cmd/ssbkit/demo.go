@@ -93,7 +93,7 @@ func runDemo(e *env, args []string) error {
 	if st, err := os.Stat(*out); err == nil && !st.IsDir() {
 		return fmt.Errorf("%s is not a folder", *out)
 	}
-	if err := os.MkdirAll(*out, 0o755); err != nil {
+	if err := mkdirOutput(*out); err != nil {
 		return fmt.Errorf("cannot create %s: %w", *out, unwrapPath(err))
 	}
 	d := &demo{e: e, dir: *out, force: *force, quiet: *quiet, total: 9, started: time.Now()}
@@ -217,11 +217,13 @@ func (d *demo) run() error {
 			rxArgs = append(rxArgs, "--offset", fmt.Sprintf("%.0f:%s", math.Round(s.OffsetHz), s.Kind))
 		}
 	}
+	var rx *demoStep
 	if len(rxArgs) > 0 {
 		args := append([]string{"rx", band1}, rxArgs...)
-		d.cmd("rx", append(args, "-o", d.path("station-{freq}.wav"), "-q")...)
+		rx = d.cmd("rx", append(args, "--fine-tune", "--json", "-o", d.path("station-{freq}.wav"), "-q")...)
 	} else {
-		d.steps = append(d.steps, &demoStep{name: "rx", args: []string{"rx"}, err: "no signal to decode (spectrum detected none)"})
+		rx = &demoStep{name: "rx", args: []string{"rx"}, err: "no signal to decode (spectrum detected none)"}
+		d.steps = append(d.steps, rx)
 	}
 	// 5. measure the bench test
 	bt := truth.Bench
@@ -250,7 +252,7 @@ func (d *demo) run() error {
 	}
 	// 9. the summary
 	d.say("[%d/%d] summary: %s", d.total, d.total, d.path(demoSummary))
-	md := d.summary(truth, info, signals, spec, meas, sw, txm)
+	md := d.summary(truth, info, signals, spec, rx, meas, sw, txm)
 	if err := d.save(demoSummary, []byte(md)); err != nil {
 		return err
 	}
@@ -328,14 +330,7 @@ func benchMeta(t samples.BenchTruth, n int64) iq.Meta {
 }
 
 // detected is one signal of spectrum --json.
-type detected struct {
-	OffsetHz float64  `json:"offset_hz"`
-	FreqHz   *float64 `json:"freq_hz"`
-	LowHz    float64  `json:"low_hz"`
-	HighHz   float64  `json:"high_hz"`
-	SNRdB    float64  `json:"snr_db"`
-	Kind     string   `json:"kind"`
-}
+type detected = signalJSON
 
 // parseSignals reads spectrum --json: an object with "signals" or a bare
 // list.
@@ -392,7 +387,7 @@ func matchStation(t samples.BandTruth, off float64) (samples.Station, float64) {
 	return best, bd
 }
 
-func (d *demo) summary(truth demoTruthFile, info *demoStep, signals []detected, spec, meas, sw, txm *demoStep) string {
+func (d *demo) summary(truth demoTruthFile, info *demoStep, signals []detected, spec, rx, meas, sw, txm *demoStep) string {
 	var b strings.Builder
 	w := func(format string, a ...any) { fmt.Fprintf(&b, format, a...) }
 	bt := truth.Band
@@ -440,9 +435,13 @@ func (d *demo) summary(truth demoTruthFile, info *demoStep, signals []detected, 
 	}
 
 	w("## Signals detected\n\n")
-	w("`ssbkit spectrum --json` against the scenario's truth (carrier error: detected minus true, Hz).\n\n")
-	w("| # | kind | carrier offset Hz | frequency Hz | SNR dB | true mode | true carrier offset Hz | carrier error Hz | station | audio |\n")
-	w("|---|---|---|---|---|---|---|---|---|---|\n")
+	w("`ssbkit spectrum --json` against the scenario's truth (carrier error: detected minus true, Hz; a drifting\n")
+	w("station is compared with its mid-capture carrier). An SSB carrier is first placed 300 Hz outside the steep\n")
+	w("edge of the voice spectrum (edge estimate), then found from the voice itself: the harmonics of the\n")
+	w("speaker's pitch, tuning confidence 0–1.\n\n")
+	w("| # | kind | carrier offset Hz | frequency Hz | SNR dB | true mode | true carrier offset Hz | carrier error Hz | edge estimate error Hz | tuning confidence | station | audio |\n")
+	w("|---|---|---|---|---|---|---|---|---|---|---|---|\n")
+	var tuned, edged []string
 	for i, s := range signals {
 		st, _ := matchStation(bt, s.OffsetHz)
 		mid := st.OffsetHz + st.DriftHz/2
@@ -454,8 +453,14 @@ func (d *demo) summary(truth demoTruthFile, info *demoStep, signals []detected, 
 				audio = fmt.Sprintf("[%s](%s)", name, name)
 			}
 		}
-		w("| %d | %s | %.0f | %.0f | %.1f | %s | %.0f | %+.0f | %s | %s |\n",
-			i+1, s.Kind, s.OffsetHz, bt.CenterHz+s.OffsetHz, s.SNRdB, st.Mode, mid, s.OffsetHz-mid, st.Label, audio)
+		edge, conf := "—", "—"
+		if s.EdgeHz != nil && s.Confidence != nil {
+			edge, conf = fmt.Sprintf("%+.1f", *s.EdgeHz-mid), fmt.Sprintf("%.2f", *s.Confidence)
+			tuned = append(tuned, fmt.Sprintf("%+.1f", s.OffsetHz-mid))
+			edged = append(edged, fmt.Sprintf("%+.0f", *s.EdgeHz-mid))
+		}
+		w("| %d | %s | %.0f | %.0f | %.1f | %s | %.0f | %+.1f | %s | %s | %s | %s |\n",
+			i+1, s.Kind, s.OffsetHz, bt.CenterHz+s.OffsetHz, s.SNRdB, st.Mode, mid, s.OffsetHz-mid, edge, conf, st.Label, audio)
 	}
 	if n := len(wavs); n > 0 {
 		// the receiver's planner rule (modem.NewReceiverFront)
@@ -468,7 +473,11 @@ func (d *demo) summary(truth demoTruthFile, info *demoStep, signals []detected, 
 	if len(signals) == 0 {
 		w("(no signals: the spectrum step did not run or found none)\n")
 	}
-
+	if len(tuned) > 0 {
+		w("\nSSB carriers found from the voices are %s Hz from the truth; placed from the spectrum's edges they were %s Hz off.\n",
+			strings.Join(tuned, ", "), strings.Join(edged, ", "))
+	}
+	d.fineTuneSummary(w, bt, rx)
 	w("\n## Bench test\n\n")
 	bn := truth.Bench
 	w("Two tones at %.0f and %.0f Hz, upper sideband, carrier %.0f Hz above the centre; `ssbkit measure --json`\n", bn.Tones[0].OffsetHz, bn.Tones[1].OffsetHz, bn.CarrierOffsetHz)
@@ -556,6 +565,46 @@ func (d *demo) summary(truth demoTruthFile, info *demoStep, signals []detected, 
 		w("| %s | %s | %s | %.2f |\n", s.name, cmd, res, s.elapsed.Seconds())
 	}
 	return b.String()
+}
+
+// fineTuneSummary tells, from rx --fine-tune --json, where rx found each
+// SSB carrier at the start and at the end of the capture against the
+// truth (the drifting station moves by its DriftHz).
+func (d *demo) fineTuneSummary(w func(string, ...any), bt samples.BandTruth, rx *demoStep) {
+	if rx == nil || rx.err != "" {
+		return
+	}
+	var doc struct {
+		Channels []struct {
+			OffsetHz float64 `json:"offset_hz"`
+			FineTune *struct {
+				StartHz float64 `json:"start_hz"`
+				EndHz   float64 `json:"end_hz"`
+			} `json:"fine_tune"`
+		} `json:"channels"`
+	}
+	if json.Unmarshal(rx.stdout, &doc) != nil {
+		return
+	}
+	var rows []string
+	for _, c := range doc.Channels {
+		if c.FineTune == nil {
+			continue
+		}
+		st, _ := matchStation(bt, c.OffsetHz)
+		a, b := c.OffsetHz+c.FineTune.StartHz, c.OffsetHz+c.FineTune.EndHz
+		rows = append(rows, fmt.Sprintf("| %s | %.0f | %.1f → %.1f | %.0f → %.0f | %+.1f, %+.1f |",
+			st.Label, c.OffsetHz, a, b, st.OffsetHz, st.OffsetHz+st.DriftHz, a-st.OffsetHz, b-st.OffsetHz-st.DriftHz))
+	}
+	if len(rows) == 0 {
+		return
+	}
+	w("\n`ssbkit rx --fine-tune` then followed each SSB carrier through the capture from the voice (3 s windows, a\n")
+	w("smooth correction applied before the channel filter): the carrier it decoded at the start and at the end.\n\n")
+	w("| station | tuned Hz | decoded at Hz (start → end) | true Hz (start → end) | error Hz (start, end) |\n|---|---|---|---|---|\n")
+	for _, r := range rows {
+		w("%s\n", r)
+	}
 }
 
 func bandString(v any) string {

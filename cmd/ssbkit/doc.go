@@ -13,6 +13,7 @@ The commands are:
 	measure   modulation quality of one SSB/AM transmission
 	sweep     opposite-sideband suppression against phase-splitter length
 	splitter  one phase-splitter design in detail, coefficients, plot
+	analog    analog RC phasing network: parts, tolerances, parts list
 	spectrum  averaged spectrum and waterfall; detect signals
 	info      format, level, DC, clipping and I/Q balance of a capture
 	convert   convert a capture between sample formats

@@ -6,6 +6,8 @@ import (
 	"strings"
 
 	"github.com/spf13/pflag"
+
+	"ssbkit/iq"
 )
 
 // newFlagSet returns a flag set for one subcommand with the flags every
@@ -46,4 +48,30 @@ func parseFlags(fs *pflag.FlagSet, args []string) error {
 		return usagef("%v", err)
 	}
 	return nil
+}
+
+// The sample rates ssbkit accepts, from a flag or a file. Receiver audio
+// at 8 kHz is the slowest capture it is for, and amateur receivers
+// sample at up to some tens of MS/s (common practice); a rate outside
+// these bounds is a wrong flag or a damaged header, and taken at its word
+// it would ask for filters and transforms of absurd size.
+const (
+	minRate = 1e3   // Hz
+	maxRate = 500e6 // Hz
+)
+
+// rateRange is the accepted range, for messages.
+const rateRange = "from 1 kHz to 500 MHz"
+
+// parseRate parses the value s of flag (with its dashes) as a sample
+// rate; errors are usage errors naming the flag.
+func parseRate(flag, s string) (float64, error) {
+	r, err := iq.ParseFrequency(s)
+	if err != nil {
+		return 0, usagef("%s: %v", flag, err)
+	}
+	if !(r >= minRate && r <= maxRate) {
+		return 0, usagef("%s %s: want a sample rate %s", flag, s, rateRange)
+	}
+	return r, nil
 }

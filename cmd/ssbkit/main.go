@@ -9,6 +9,7 @@ import (
 	"os"
 	"sort"
 	"strings"
+	"syscall"
 
 	"github.com/spf13/pflag"
 )
@@ -48,6 +49,7 @@ var commands = []command{
 	{"measure", "modulation quality of one SSB/AM transmission", runMeasure},
 	{"sweep", "opposite-sideband suppression against phase-splitter length", runSweep},
 	{"splitter", "one phase-splitter design in detail, coefficients, plot", runSplitter},
+	{"analog", "analog RC phasing network: parts, tolerances, parts list", runAnalog},
 	{"spectrum", "averaged spectrum and waterfall; detect signals", runSpectrum},
 	{"info", "format, level, DC, clipping and I/Q balance of a capture", runInfo},
 	{"convert", "convert a capture between sample formats", runConvert},
@@ -55,6 +57,7 @@ var commands = []command{
 }
 
 func main() {
+	watchSignals()
 	e := &env{stdin: os.Stdin, stdout: os.Stdout, stderr: os.Stderr, stderrTTY: isTerminal(os.Stderr)}
 	os.Exit(run(os.Args[1:], e))
 }
@@ -64,6 +67,9 @@ const (
 	exitOK      = 0
 	exitFailure = 1
 	exitUsage   = 2
+	// exitBrokenPipe is 128 + SIGPIPE, the shell's status for a tool
+	// ended by a closed pipe (common practice).
+	exitBrokenPipe = 128 + int(syscall.SIGPIPE)
 )
 
 // usageError marks an error in the command line itself (exit 2).
@@ -99,6 +105,7 @@ func run(args []string, e *env) int {
 			continue
 		}
 		e.cmd = name
+		setCommand(name)
 		err := c.run(e, args[1:])
 		return report(e, name, err)
 	}
@@ -111,6 +118,11 @@ func run(args []string, e *env) int {
 func report(e *env, name string, err error) int {
 	if err == nil || errors.Is(err, errHelp) {
 		return exitOK
+	}
+	if errors.Is(err, syscall.EPIPE) {
+		// Standard output was closed early ("… - | head"): end quietly
+		// with SIGPIPE's status, as other Unix tools do.
+		return exitBrokenPipe
 	}
 	msg := strings.ReplaceAll(err.Error(), "\n", " ")
 	fmt.Fprintf(e.stderr, "ssbkit: %s: %s\n", name, msg)

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"cmp"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -129,28 +130,34 @@ func runMeasure(e *env, args []string) error {
 		return err
 	}
 	r, err := m.Result()
-	if err != nil {
-		if errors.Is(err, spectral.ErrNoSignal) {
-			return fmt.Errorf("%s: %w (check --offset/--freq and --band; \"ssbkit spectrum --list\" shows what the capture holds)", in, err)
-		}
+	// Noise only (a receiver with its input terminated, or the wrong
+	// --offset): the sideband figures have nothing to measure, but the
+	// capture's I/Q balance is still worth having, so it is reported
+	// alone, with a warning. A --plot of nothing is refused.
+	noSignal := errors.Is(err, spectral.ErrNoSignal)
+	switch {
+	case noSignal && *plotTo != "":
+		return fmt.Errorf("%s: %w: nothing to plot (without --plot measure reports the I/Q balance alone; so does \"ssbkit info\")", in, err)
+	case noSignal:
+		e.warnf("%s: %v: sideband, carrier, bandwidth and IMD figures absent; the I/Q balance is the whole capture's (check --offset/--freq and --band; \"ssbkit spectrum --list\" shows what the capture holds)", in, err)
+	case err != nil:
 		return fmt.Errorf("%s: %w", in, err)
 	}
 	imb := stats.Imbalance()
 
+	// The picture is committed with the report, so that a failure
+	// writing either leaves neither.
+	var plot *outFile
 	if *plotTo != "" {
-		f, err := createOutput(*plotTo, *force, in)
-		if err != nil {
+		if plot, err = createOutput(*plotTo, *force, in); err != nil {
 			return err
 		}
-		defer f.Abort()
-		if err := writeMeasurePNG(f, filepath.Base(in), r, 1000, 600); err != nil {
+		defer plot.Abort()
+		if err := writeMeasurePNG(plot, filepath.Base(in), r, 1000, 600); err != nil {
 			return fmt.Errorf("%s: %w", *plotTo, err)
 		}
-		if err := f.Commit(); err != nil {
-			return err
-		}
 	}
-	w := e.stdout
+	w, report := e.stdout, "standard output"
 	var of *outFile
 	if *out != "" && *out != "-" {
 		of, err = createOutput(*out, *force, in)
@@ -158,18 +165,30 @@ func runMeasure(e *env, args []string) error {
 			return err
 		}
 		defer of.Abort()
-		w = of
+		w, report = of, *out
 	}
-	if *asJSON {
+	sw := &stickyWriter{w: w}
+	w = sw
+	switch {
+	case noSignal && *asJSON:
+		err = writeNoSignalJSON(w, meta, opt, imb)
+	case noSignal:
+		err = writeNoSignalText(w, in, meta, stats.Count(), opt, imb)
+	case *asJSON:
 		err = writeMeasureJSON(w, r, imb)
-	} else {
+	default:
 		err = writeMeasureText(w, in, meta, r, imb)
 	}
-	if err != nil {
-		return err
+	if err := cmp.Or(sw.err, err); err != nil {
+		return fmt.Errorf("%s: %w", report, err)
 	}
 	if of != nil {
-		return of.Commit()
+		if err := of.Commit(); err != nil {
+			return err
+		}
+	}
+	if plot != nil {
+		return plot.Commit()
 	}
 	return nil
 }
@@ -201,7 +220,7 @@ type measureJSON struct {
 	SuppressionDB       nullable   `json:"suppression_db"`
 	PEPDBFS             nullable   `json:"pep_dbfs"`
 	CarrierDBc          nullable   `json:"carrier_dbc"`
-	OccupiedBandwidthHz float64    `json:"occupied_bandwidth_hz"`
+	OccupiedBandwidthHz nullable   `json:"occupied_bandwidth_hz"`
 	Tones               []toneJSON `json:"tones,omitempty"`
 	IMD3DBc             *nullable  `json:"imd3_dbc,omitempty"`
 	IMD5DBc             *nullable  `json:"imd5_dbc,omitempty"`
@@ -210,6 +229,47 @@ type measureJSON struct {
 	IQGainDB            nullable   `json:"iq_gain_imbalance_db"`
 	IQPhaseDeg          nullable   `json:"iq_phase_imbalance_deg"`
 	ImageRejectionDB    nullable   `json:"image_rejection_db"`
+	Note                string     `json:"note,omitempty"`
+}
+
+// noSignalNote explains the null figures of a capture without a
+// transmission.
+const noSignalNote = "no transmission above the noise: sideband, carrier, bandwidth and IMD figures absent; the I/Q balance is the whole capture's"
+
+// writeNoSignalJSON writes the report of a capture that holds no
+// transmission: the sideband figures null, sideband "none", the I/Q
+// balance and a note.
+func writeNoSignalJSON(w io.Writer, meta iq.Meta, opt spectral.MeasureOptions, imb iq.Imbalance) error {
+	nan := nullable(math.NaN())
+	j := measureJSON{
+		RateHz: meta.Rate, CarrierOffsetHz: opt.CarrierHz, Sideband: "none", BandHz: [2]float64{opt.BandLow, opt.BandHigh},
+		WantedDBFS: nan, UnwantedDBFS: nan, SuppressionDB: nan, PEPDBFS: nan, CarrierDBc: nan, OccupiedBandwidthHz: nan,
+		IQGainDB: rn(imb.GainDB, 3), IQPhaseDeg: rn(imb.PhaseDeg, 3), ImageRejectionDB: rn(imb.ImageRejectionDB, 2),
+		Note: noSignalNote,
+	}
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", "  ")
+	return enc.Encode(j)
+}
+
+// writeNoSignalText is writeMeasureText for a capture that holds no
+// transmission: the I/Q balance alone.
+func writeNoSignalText(w io.Writer, in string, meta iq.Meta, samples int64, opt spectral.MeasureOptions, imb iq.Imbalance) error {
+	p := func(format string, a ...any) { fmt.Fprintf(w, format, a...) }
+	p("%s: %.0f S/s, %d samples (%.2f s)\n", in, meta.Rate, samples, float64(samples)/meta.Rate)
+	p("no transmission above the noise at %+.1f Hz over %g–%g Hz: sideband, carrier, bandwidth and IMD figures absent\n\n",
+		opt.CarrierHz, opt.BandLow, opt.BandHigh)
+	writeIQLines(w, imb, "blind estimate over the whole capture")
+	return nil
+}
+
+// writeIQLines writes the I/Q balance lines of the text report.
+func writeIQLines(w io.Writer, imb iq.Imbalance, note string) {
+	p := func(format string, a ...any) { fmt.Fprintf(w, format, a...) }
+	p("  I/Q gain imbalance  %8.3f dB\n", round(imb.GainDB, 3))
+	p("  I/Q phase imbalance %8.3f°\n", round(imb.PhaseDeg, 3))
+	p("  image rejection     %8.2f dB     %s (expect ≥ %d dB; %s)\n",
+		imb.ImageRejectionDB, verdict(imb.ImageRejectionDB >= goodIRRDB+10, imb.ImageRejectionDB >= goodIRRDB), goodIRRDB, note)
 }
 
 func rn(x float64, d int) nullable { return nullable(round(x, d)) }
@@ -221,7 +281,7 @@ func writeMeasureJSON(w io.Writer, r *spectral.Result, imb iq.Imbalance) error {
 		RateHz: r.RateHz, CarrierOffsetHz: r.CarrierOffsetHz, Sideband: r.Sideband, BandHz: r.BandHz,
 		WantedDBFS: rn(r.WantedDBFS, 2), UnwantedDBFS: rn(r.UnwantedDBFS, 2),
 		SuppressionDB: rn(r.SuppressionDB, 2), PEPDBFS: rn(r.PEPDBFS, 2), CarrierDBc: rn(r.CarrierDBc, 2),
-		OccupiedBandwidthHz: round(r.OccupiedBandwidthHz, 1),
+		OccupiedBandwidthHz: rn(r.OccupiedBandwidthHz, 1),
 		IQGainDB:            rn(imb.GainDB, 3), IQPhaseDeg: rn(imb.PhaseDeg, 3), ImageRejectionDB: rn(imb.ImageRejectionDB, 2),
 	}
 	if r.TwoTone {
@@ -351,9 +411,6 @@ func writeMeasureText(w io.Writer, in string, meta iq.Meta, r *spectral.Result, 
 	} else {
 		p("  two-tone test       not found (IMD needs two dominant tones)\n")
 	}
-	p("  I/Q gain imbalance  %8.3f dB\n", round(imb.GainDB, 3))
-	p("  I/Q phase imbalance %8.3f°\n", round(imb.PhaseDeg, 3))
-	p("  image rejection     %8.2f dB     %s (expect ≥ %d dB; blind estimate, reads low on non-circular signals)\n",
-		imb.ImageRejectionDB, verdict(imb.ImageRejectionDB >= goodIRRDB+10, imb.ImageRejectionDB >= goodIRRDB), goodIRRDB)
+	writeIQLines(w, imb, "blind estimate, reads low on non-circular signals")
 	return nil
 }

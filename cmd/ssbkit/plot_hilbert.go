@@ -28,6 +28,7 @@ var designColours = map[string]color.RGBA{
 	"allpass":    {0x2a, 0x9d, 0x6e, 0xff},
 	"fft":        {0x3d, 0x3d, 0x3d, 0xff},
 	"weaver":     {0xe3, 0x7f, 0xb1, 0xff},
+	"analog":     {0x8c, 0x56, 0x2d, 0xff},
 }
 
 var designShapes = map[string]draw.GlyphDrawer{
@@ -39,6 +40,7 @@ var designShapes = map[string]draw.GlyphDrawer{
 	"allpass":    draw.TriangleGlyph{},
 	"fft":        draw.CrossGlyph{},
 	"weaver":     draw.PlusGlyph{},
+	"analog":     draw.RingGlyph{},
 }
 
 // sweepPlotMaxDB is where the sweep plot's suppression axis stops: designs
@@ -61,7 +63,7 @@ func (t dbTicks) Ticks(lo, hi float64) []plot.Tick {
 func writeSweepPNG(w io.Writer, title string, designs []string, rows []sweepRow) error {
 	byLen := plot.New()
 	byLen.Title.Text = title
-	byLen.X.Label.Text = "length (taps; FFT block; all-pass sections)"
+	byLen.X.Label.Text = "length (taps; FFT block; all-pass or analog sections)"
 	byCost := plot.New()
 	byCost.Title.Text = "… against cost"
 	byCost.X.Label.Text = "real multiply-adds per sample"
@@ -91,6 +93,9 @@ func writeSweepPNG(w io.Writer, title string, designs []string, rows []sweepRow)
 		for i, p := range []*plot.Plot{byLen, byCost} {
 			xy := xl
 			if i == 1 {
+				if d == "analog" {
+					continue // no multiplications
+				}
 				xy = xc
 			}
 			l, pts, err := plotter.NewLinePoints(xy)

@@ -2,6 +2,7 @@ package main
 
 import (
 	"encoding/binary"
+	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
@@ -34,6 +35,7 @@ Examples:
   ssbkit rx band.cu8 --rate 2.4M --offset 120k --agc off -o ch.wav
   ssbkit rx band.cu8 --rate 2.4M --offset -300k --offset 120k:lsb --offset 500k:am -o 'ch_{freq}.wav'
   ssbkit rx band.cu8 --rate 2.4M --center 14.2M --auto -o 'auto_{freq}.wav'
+  ssbkit rx band.sigmf-meta --freq 7.1405M:lsb --fine-tune --json -o net.wav
 
 --auto reads the capture twice: first to find the signals (as "spectrum
 --list": Hann segments, 50 % overlap, at most 256 of them; a longer capture
@@ -47,7 +49,25 @@ With 12 channels or more (--auto on a busy band, say) the capture is split
 once by a channeliser, a polyphase filter bank, and each channel decoded
 from its nearest sub-band, at a fraction of the cost of giving every
 channel its own first stage; the audio is the same to within the
-filters' 80 dB rejection. Fewer channels each have their own.`
+filters' 80 dB rejection. Fewer channels each have their own.
+
+--fine-tune (on with --auto, off otherwise; --fine-tune=false turns it off)
+finds each usb/lsb carrier from the voice itself, within ±300 Hz of the one
+given: voiced speech is a series of harmonics of the speaker's pitch, and
+the offset that makes the heard lines a harmonic series again, the same
+while the pitch moves, is the tuning error. It is estimated in 3 s windows,
+1 s apart, and removed before the channel filter by a correction that
+moves smoothly from window to window, so a drifting station is followed
+without clicks; the audio stays aligned with the capture and as long. The
+summary (and --json) gives the correction at the start and end and the
+largest, in Hz (true carrier minus tuned). A channel without voiced speech
+(noise, tones, one held pitch) keeps its carrier, with a warning; am and
+sam channels are not affected.`
+
+// minBandwidth is the narrowest --bandwidth: narrower than any voice or
+// AM channel, and the channel filter's length grows as its inverse (0.01 Hz
+// took minutes to design).
+const minBandwidth = 100
 
 // rxChannel is one channel requested on the command line.
 type rxChannel struct {
@@ -68,6 +88,8 @@ func runRx(e *env, args []string) error {
 	gain := fs.Float64("gain", 0, "fixed gain in dB with --agc off (0 = unity)")
 	ar := fs.String("audio-rate", "48k", "audio sample rate in Hz (default 48k, or the capture's rate when that is lower)")
 	auto := fs.Bool("auto", false, "decode every signal that signal detection finds (as `spectrum --list`)")
+	fine := fs.Bool("fine-tune", false, "find each usb/lsb carrier from the voice (within ±300 Hz) and follow its drift (default on with --auto)")
+	asJSON := fs.Bool("json", false, "print what was decoded as JSON on standard output")
 	force := fs.Bool("force", false, "overwrite existing outputs")
 	quiet := fs.BoolP("quiet", "q", false, "no progress bar and no summary")
 	cf := addCaptureFlags(fs)
@@ -101,12 +123,15 @@ func runRx(e *env, args []string) error {
 	}
 	var bandwidth float64
 	if *bw != "" {
-		if bandwidth, err = iq.ParseFrequency(*bw); err != nil || !(bandwidth > 0) {
-			return usagef("--bandwidth: want a positive frequency, got %q", *bw)
+		if bandwidth, err = iq.ParseFrequency(*bw); err != nil || !(bandwidth >= minBandwidth) {
+			return usagef("--bandwidth %s: want an audio bandwidth of at least %d Hz", *bw, minBandwidth)
 		}
 	}
 	if *auto && (len(offsets) > 0 || len(freqs) > 0) {
 		return usagef("--auto and --offset/--freq exclude each other")
+	}
+	if *auto && !fs.Changed("fine-tune") {
+		*fine = true
 	}
 	if !*auto && len(offsets) == 0 && len(freqs) == 0 {
 		offsets = []string{"0"}
@@ -199,6 +224,13 @@ func runRx(e *env, args []string) error {
 		} else {
 			c.label = fmt.Sprintf("%+d", int64(math.Round(c.offset)))
 		}
+		if *fine {
+			if c.cfg.Mode == modem.USB || c.cfg.Mode == modem.LSB {
+				c.cfg.FineTune = true
+			} else if fs.Changed("fine-tune") {
+				e.warnf("--fine-tune: the %s channel at %s Hz keeps its carrier (fine tuning is for usb and lsb voices)", c.cfg.Mode, c.label)
+			}
+		}
 		if meta.Real && c.cfg.Mode != modem.AM && c.cfg.Mode != modem.SAM && c.offset < 0 {
 			return fmt.Errorf("%s is a real recording: offsets are positive audio frequencies, not %g Hz", in, c.offset)
 		}
@@ -210,6 +242,14 @@ func runRx(e *env, args []string) error {
 		seen[targets[i]] = true
 	}
 	rcv, err := modem.NewReceiver(cfgs)
+	if errors.Is(err, modem.ErrFineTune) {
+		// a channel too narrow for the search, say: decode untuned
+		e.warnf("--fine-tune: %v; the given carriers are kept", strings.TrimPrefix(err.Error(), "fine tuning: "))
+		for i := range cfgs {
+			cfgs[i].FineTune = false
+		}
+		rcv, err = modem.NewReceiver(cfgs)
+	}
 	if err != nil {
 		return channelError(err, meta, chans)
 	}
@@ -275,6 +315,11 @@ func runRx(e *env, args []string) error {
 		for i, c := range rcv.Channels() {
 			cfg := c.Config()
 			fmt.Fprintf(e.stderr, "rx: %s: %s %s at %s Hz, %d audio samples", targets[i], cfg.Mode, bandText(cfg), chans[i].label, writers[i].n)
+			if t := c.FineTuner(); t != nil && t.Report().Accepted > 0 {
+				r := t.Report()
+				fmt.Fprintf(e.stderr, ", carrier corrected by %+.1f Hz at the start, %+.1f Hz at the end, %+.1f Hz at most (%d of %d windows)",
+					r.Start, r.End, r.Largest, r.Accepted, r.Windows)
+			}
 			if writers[i].clipped > 0 {
 				fmt.Fprintf(e.stderr, ", %d samples clipped (lower --gain or use --agc)", writers[i].clipped)
 			}
@@ -289,8 +334,62 @@ func runRx(e *env, args []string) error {
 		if s := c.SAM(); s != nil && s.LockTime() < 0 {
 			e.warnf("%s: sam found no carrier to lock to; the audio is the unlocked in-phase part", targets[i])
 		}
+		if t := c.FineTuner(); t != nil && t.Report().Accepted == 0 {
+			e.warnf("%s: --fine-tune found no voice to tune by (no voiced speech, or one held pitch); the carrier at %s Hz is kept", targets[i], chans[i].label)
+		}
+	}
+	if *asJSON {
+		return writeRxJSON(e.stdout, meta, rcv, chans, targets, writers)
 	}
 	return nil
+}
+
+// rxChannelJSON is one channel of rx --json.
+type rxChannelJSON struct {
+	Output   string        `json:"output"`
+	Mode     string        `json:"mode"`
+	OffsetHz float64       `json:"offset_hz"`
+	FreqHz   *float64      `json:"freq_hz,omitempty"`
+	Samples  int64         `json:"audio_samples"`
+	Clipped  int64         `json:"clipped"`
+	FineTune *fineTuneJSON `json:"fine_tune,omitempty"`
+}
+
+// fineTuneJSON is a channel's carrier correction: the true carrier minus
+// the tuned one, Hz.
+type fineTuneJSON struct {
+	StartHz   float64 `json:"start_hz"`
+	EndHz     float64 `json:"end_hz"`
+	LargestHz float64 `json:"largest_hz"`
+	Windows   int     `json:"windows"`
+	Accepted  int     `json:"accepted"`
+}
+
+func writeRxJSON(w io.Writer, meta iq.Meta, rcv *modem.Receiver, chans []rxChannel, targets []string, writers []*wavMono) error {
+	doc := struct {
+		RateHz      float64         `json:"rate_hz"`
+		AudioRateHz float64         `json:"audio_rate_hz"`
+		Channels    []rxChannelJSON `json:"channels"`
+	}{RateHz: meta.Rate}
+	for i, c := range rcv.Channels() {
+		cfg := c.Config()
+		doc.AudioRateHz = cfg.AudioRate
+		j := rxChannelJSON{Output: targets[i], Mode: cfg.Mode.String(), OffsetHz: round(chans[i].offset, 1),
+			Samples: writers[i].n, Clipped: writers[i].clipped}
+		if meta.HasCenter {
+			f := round(meta.Center+chans[i].offset, 1)
+			j.FreqHz = &f
+		}
+		if t := c.FineTuner(); t != nil {
+			r := t.Report()
+			j.FineTune = &fineTuneJSON{StartHz: round(r.Start, 1), EndHz: round(r.End, 1), LargestHz: round(r.Largest, 1),
+				Windows: r.Windows, Accepted: r.Accepted}
+		}
+		doc.Channels = append(doc.Channels, j)
+	}
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", "  ")
+	return enc.Encode(doc)
 }
 
 func bandText(c modem.RxConfig) string {

@@ -8,6 +8,8 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+
+	"ssbkit/hilbert"
 )
 
 func TestSplitterSummary(t *testing.T) {
@@ -87,10 +89,138 @@ func TestSplitterBadInput(t *testing.T) {
 		{[]string{"--design", "allpass", "--taps", "31"}, "--taps does not apply"},
 		{[]string{"--design", "kaiser", "--sections", "3"}, "--sections applies"},
 		{[]string{"--taps", "31", "--sections", "3"}, "exclude"},
+		{[]string{"--bits", "1"}, "--bits 1: want 2 to 32"},
+		{[]string{"--bits", "33"}, "--bits 33"},
 	} {
 		code, _, errs := runCmd(t, append([]string{"splitter"}, c.args...)...)
 		if code != exitUsage || !strings.Contains(errs, c.want) || strings.Count(errs, "\n") != 1 {
 			t.Errorf("splitter %q = %d, %q; want exit 2 with %q", c.args, code, errs, c.want)
+		}
+	}
+}
+
+func TestSplitterBits(t *testing.T) {
+	// The quantised summary beside the exact one. The 63-tap design at
+	// 16 bits: 79.42 dB (re-rounded taps) against 81.29 dB exact (TestQuantized63Taps in
+	// package hilbert explains the gap).
+	code, out, errs := runCmd(t, "splitter", "--bits", "16")
+	if code != exitOK || !strings.Contains(out, "min 81.29 dB") || !strings.Contains(out, "16-bit coefficients, scale 2^-15") ||
+		!strings.Contains(out, "quantised      min 79.42 dB") {
+		t.Errorf("exit %d %s\n%s", code, errs, out)
+	}
+	code, out, _ = runCmd(t, "splitter", "--sections", "6", "--bits", "16", "--json")
+	var j struct {
+		Bits         int  `json:"bits"`
+		FractionBits *int `json:"fraction_bits"`
+		Quantized    *struct {
+			SuppressionMinDB float64  `json:"suppression_min_db"`
+			DataBits         int      `json:"data_bits"`
+			AccumulatorBits  int      `json:"accumulator_bits"`
+			MeasuredMinDB    *float64 `json:"measured_min_db"`
+		} `json:"quantized"`
+	}
+	if code != exitOK || json.Unmarshal([]byte(out), &j) != nil || j.Bits != 16 || j.FractionBits == nil || *j.FractionBits != 15 || j.Quantized == nil {
+		t.Fatalf("json: %d %s", code, out)
+	}
+	// Tones through the 16-bit integer arithmetic agree with the
+	// quantised response within 1 dB (issue 3's --verify bound), and the
+	// accumulator is B + D + 2 = 34 bits.
+	if q := j.Quantized; q.DataBits != 16 || q.AccumulatorBits != 34 || q.MeasuredMinDB == nil || math.Abs(*q.MeasuredMinDB-q.SuppressionMinDB) > 1 {
+		t.Errorf("quantized %+v measured %v", q, *q.MeasuredMinDB)
+	}
+}
+
+func TestSplitterExportBits(t *testing.T) {
+	// The exported integers times the scale in the header reproduce the
+	// quantised coefficients exactly (issue 11).
+	for _, c := range []struct {
+		args []string
+		arr  []string // array names in order
+	}{
+		{[]string{"--design", "equiripple", "--taps", "63", "--bits", "16", "--export", "c"}, []string{"splitterQ"}},
+		{[]string{"--design", "kaiser", "--taps", "31", "--bits", "20", "--export", "go"}, []string{"splitterQ"}},
+		{[]string{"--sections", "5", "--bits", "16", "--export", "c"}, []string{"allpassI", "allpassQ"}},
+		{[]string{"--design", "weaver", "--taps", "41", "--bits", "12", "--export", "go"}, []string{"weaverLowpass"}},
+	} {
+		code, out, errs := runCmd(t, append([]string{"splitter"}, c.args...)...)
+		if code != exitOK {
+			t.Fatalf("%q: exit %d %s", c.args, code, errs)
+		}
+		frac := -1
+		arrays := map[string][]int64{}
+		var cur string
+		for _, line := range strings.Split(out, "\n") {
+			l := strings.TrimSpace(line)
+			switch {
+			case strings.HasPrefix(l, "#define SPLITTER_FRAC "):
+				frac, _ = strconv.Atoi(strings.TrimPrefix(l, "#define SPLITTER_FRAC "))
+			case strings.HasPrefix(l, "const splitterFrac = "):
+				frac, _ = strconv.Atoi(strings.TrimPrefix(l, "const splitterFrac = "))
+			case strings.Contains(l, "{"):
+				for _, n := range c.arr {
+					if strings.Contains(l, " "+n+"[") || strings.Contains(l, "var "+n+" ") {
+						cur = n
+					}
+				}
+			case strings.HasPrefix(l, "}"):
+				cur = ""
+			case cur != "":
+				v, err := strconv.ParseInt(strings.TrimSuffix(l, ","), 10, 64)
+				if err != nil {
+					t.Fatalf("%q: line %q", c.args, l)
+				}
+				arrays[cur] = append(arrays[cur], v)
+			}
+		}
+		if frac < 0 || !strings.Contains(out, "value = integer * 2^-"+strconv.Itoa(frac)) {
+			t.Fatalf("%q: no scale in the header\n%s", c.args, out)
+		}
+		// The same design through the library.
+		spec := hilbert.Spec{Rate: 8000, Low: 300, High: 2700}
+		for i := 0; i < len(c.args); i += 2 {
+			switch c.args[i] {
+			case "--design":
+				spec.Design = c.args[i+1]
+			case "--taps":
+				spec.Taps, _ = strconv.Atoi(c.args[i+1])
+			case "--sections":
+				spec.Design = "allpass"
+				spec.Sections, _ = strconv.Atoi(c.args[i+1])
+			case "--bits":
+				spec.Bits, _ = strconv.Atoi(c.args[i+1])
+			}
+		}
+		sp, err := hilbert.New(spec)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var want [][]float64
+		switch spec.Design {
+		case "allpass":
+			i, q, _ := hilbert.Sections(sp)
+			want = [][]float64{i, q}
+		case "weaver":
+			fx, _ := hilbert.Quantized(sp)
+			var lp []float64
+			for _, v := range fx.LowPass {
+				lp = append(lp, float64(v)*fx.Scale()) // the taps Response uses (TestQuantizedExact)
+			}
+			want = [][]float64{lp}
+		default:
+			_, q, _ := hilbert.Coefficients(sp)
+			want = [][]float64{q}
+		}
+		for k, n := range c.arr {
+			got := arrays[n]
+			if len(got) != len(want[k]) {
+				t.Fatalf("%q %s: %d integers, %d coefficients", c.args, n, len(got), len(want[k]))
+			}
+			lim := int64(1) << (spec.Bits - 1)
+			for i, v := range got {
+				if math.Ldexp(float64(v), -frac) != want[k][i] || v >= lim || v < -lim {
+					t.Errorf("%q %s[%d]: %d × 2^-%d ≠ %.17g", c.args, n, i, v, frac, want[k][i])
+				}
+			}
 		}
 	}
 }

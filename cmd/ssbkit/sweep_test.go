@@ -2,11 +2,14 @@ package main
 
 import (
 	"encoding/json"
+	"math"
 	"os"
 	"path/filepath"
 	"reflect"
 	"strings"
 	"testing"
+
+	"ssbkit/hilbert"
 )
 
 func TestSweepJSON(t *testing.T) {
@@ -64,8 +67,8 @@ func TestSweepOutputs(t *testing.T) {
 	if lines[0] != "design,length,suppression_min_db,suppression_mean_db,ripple_db,delay_samples,delay_ms,macs_per_sample" {
 		t.Errorf("csv header %q", lines[0])
 	}
-	// 7 designs × 4 lengths + allpass × 10 default sections.
-	if len(lines) != 1+7*4+10 {
+	// 7 designs × 4 lengths + allpass and analog × 10 default sections.
+	if len(lines) != 1+7*4+2*10 {
 		t.Errorf("csv has %d lines", len(lines))
 	}
 	if p, _ := os.ReadFile(png); len(p) < 1000 || string(p[1:4]) != "PNG" {
@@ -95,6 +98,9 @@ func TestSweepBadInput(t *testing.T) {
 		{[]string{"--rate", "-5"}, "--rate"},
 		{[]string{"--sections", "0:3"}, "START"},
 		{[]string{"extra"}, "no arguments"},
+		{[]string{"--bits", "0"}, "--bits 0"},
+		{[]string{"--bits", "64"}, "want 2 to 32"},
+		{[]string{"--designs", "analog", "--sections", "17"}, "analog sections must be 1 to 16"},
 	} {
 		code, _, errs := runCmd(t, append([]string{"sweep"}, c.args...)...)
 		if code != exitUsage || !strings.Contains(errs, c.want) || strings.Count(errs, "\n") != 1 {
@@ -153,5 +159,59 @@ func TestSweepSkipWarning(t *testing.T) {
 	var j struct{ Rows []struct{ Length int } }
 	if err := json.Unmarshal([]byte(out), &j); err != nil || len(j.Rows) != 1 || j.Rows[0].Length != 15 {
 		t.Errorf("rows %+v (%v), want the 15 block only", j.Rows, err)
+	}
+}
+
+func TestSweepBitsAndAnalog(t *testing.T) {
+	code, out, errs := runCmd(t, "sweep", "--designs", "equiripple,allpass,analog", "--taps", "63", "--sections", "3,7", "--bits", "16", "--json", "--verify")
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var j struct {
+		Bits int              `json:"bits"`
+		Rows []map[string]any `json:"rows"`
+	}
+	if err := json.Unmarshal([]byte(out), &j); err != nil || j.Bits != 16 || len(j.Rows) != 5 {
+		t.Fatalf("%v bits %d rows %d\n%s", err, j.Bits, len(j.Rows), out)
+	}
+	for _, r := range j.Rows {
+		q, hasQ := r["quantized_min_db"].(float64)
+		_, hasM := r["measured_min_db"]
+		if r["design"] == "analog" {
+			// No coefficients and no streaming filter.
+			if hasQ || hasM || r["macs_per_sample"].(float64) != 0 {
+				t.Errorf("analog row %v", r)
+			}
+			continue
+		}
+		if !hasQ || !hasM || q > r["suppression_min_db"].(float64)+0.5 {
+			t.Errorf("row %v", r)
+		}
+	}
+	// 63 taps: 81.29 dB exact, 76.54 dB at 16 bits (hilbert's
+	// TestEquiripple63 and TestQuantized63Taps); allpass 3 sections: the
+	// 47.04 dB check value of issue 3 (its minimum over 300–3700 Hz lies
+	// at 300 Hz, so 300–2700 Hz gives the same); analog rows: the closed
+	// form (hilbert's TestAnalogEquiripple checks it against the
+	// alternation and the image-rejection formula).
+	want := []struct {
+		design string
+		length float64
+		min    float64
+	}{{"equiripple", 63, 81.29}, {"allpass", 3, 47.04}, {"allpass", 7, -1},
+		{"analog", 3, hilbert.AnalogSuppressionDB(3, 300, 2700)}, {"analog", 7, hilbert.AnalogSuppressionDB(7, 300, 2700)}}
+	for i, w := range want {
+		r := j.Rows[i]
+		if r["design"] != w.design || r["length"].(float64) != w.length || w.min > 0 && math.Abs(r["suppression_min_db"].(float64)-w.min) > 0.01 {
+			t.Errorf("row %d: %v, want %+v", i, r, w)
+		}
+	}
+	if q := j.Rows[0]["quantized_min_db"].(float64); math.Abs(q-79.42) > 0.01 {
+		t.Errorf("equiripple 63 at 16 bits: %.2f dB", q)
+	}
+	// The text table marks what does not apply.
+	code, out, _ = runCmd(t, "sweep", "--designs", "analog", "--sections", "4", "--bits", "12", "--verify")
+	if code != exitOK || !strings.Contains(out, "12-bit min dB") || !strings.Contains(out, "–") {
+		t.Errorf("text:\n%s", out)
 	}
 }

@@ -27,6 +27,12 @@ in usb, a complex exponential of magnitude a at +f above the carrier).
 Test tones have amplitude 1 (--tone) or 0.5 each (--two-tone) before the
 level is set.
 
+--bits B quantises the phase splitter's coefficients to signed B-bit
+fractions (see "ssbkit splitter --help"; the all-pass pair then also
+runs in integer arithmetic), so the file shows what firmware with such
+coefficients would send; the predicted suppression of the exact and the
+quantised splitter are both reported.
+
 CAUTION: these files are for test and licensed use. Transmitting one needs
 the right licence and band; check the spectral purity of the file (for
 example with "ssbkit measure" and "ssbkit spectrum") before putting it on
@@ -48,6 +54,11 @@ Examples:
 // down (a 5 kHz tone at 22.05 kHz, measured).
 const outOfBandDB = 12
 
+// maxToneSeconds caps --seconds: an hour of test tones is 1.4 GB of
+// cf32 at 48 kHz and far more at receiver rates; a longer run is more
+// likely a slip of the keyboard than a need.
+const maxToneSeconds = 3600
+
 // txBlock is the number of audio samples modulated at a time.
 const txBlock = 1024
 
@@ -63,6 +74,8 @@ type txReport struct {
 	AverageDBFS     float64 `json:"average_dbfs"`
 	PEPToAverageDB  float64 `json:"pep_to_average_db"`
 	SuppressionDB   float64 `json:"predicted_suppression_db,omitempty"`
+	Bits            int     `json:"bits,omitempty"`
+	QuantizedDB     float64 `json:"quantized_suppression_db,omitempty"`
 	GainDB          float64 `json:"gain_db"`
 	InternalRateHz  float64 `json:"internal_rate_hz"`
 	CarrierOffsetHz float64 `json:"carrier_offset_hz"`
@@ -79,6 +92,7 @@ func runTx(e *env, args []string) error {
 	design := fs.String("design", modem.DefaultSplitterDesign, "phase splitter: "+strings.Join(hilbert.Designs[:7], ", ")+" (with --band off: allpass, 12 sections)")
 	taps := fs.Int("taps", 0, fmt.Sprintf("splitter length: FIR taps (odd), Weaver low-pass taps or FFT block size (default %d, fft 1024, grown until %g dB over the band)", modem.DefaultSplitterTaps, float64(modem.DefaultSuppressionDB)))
 	sections := fs.Int("sections", 0, "all-pass sections of both paths together (default 6; as in sweep); implies --design allpass")
+	bits := fs.Int("bits", 0, "quantise the splitter's coefficients to signed B-bit fractions (2 to 32)")
 	band := fs.String("band", "300:2700", "audio pass band LOW:HIGH in Hz, or off")
 	offset := fs.String("offset", "0", "where the (suppressed) carrier sits in the output baseband, Hz")
 	rate := fs.String("rate", "48k", "output I/Q sample rate in Hz")
@@ -135,8 +149,8 @@ func runTx(e *env, args []string) error {
 	if len(tones) == 0 && fs.Changed("seconds") {
 		return usagef("--seconds applies to test tones (an audio file has its own length)")
 	}
-	if len(tones) > 0 && !(*seconds > 0 && *seconds <= 24*3600) {
-		return usagef("--seconds %g: want more than 0 and at most a day", *seconds)
+	if len(tones) > 0 && !(*seconds > 0 && *seconds <= maxToneSeconds) {
+		return usagef("--seconds %g: want more than 0 and at most %d (an hour of test tones)", *seconds, maxToneSeconds)
 	}
 	if *out == "" {
 		return usagef("no output path given (-o OUT)")
@@ -194,11 +208,8 @@ func runTx(e *env, args []string) error {
 		cfg.BandLow, cfg.BandHigh = lo, hi
 	}
 	var err error
-	if cfg.OutRate, err = iq.ParseFrequency(*rate); err != nil {
-		return usagef("--rate: %v", err)
-	}
-	if !(cfg.OutRate > 0) {
-		return usagef("--rate: must be positive")
+	if cfg.OutRate, err = parseRate("--rate", *rate); err != nil {
+		return err
 	}
 	if cfg.Offset, err = iq.ParseFrequency(*offset); err != nil {
 		return usagef("--offset: %v", err)
@@ -219,6 +230,12 @@ func runTx(e *env, args []string) error {
 			return usagef("--carrier %g dB: want a level below 0 dB relative to PEP", *carrier)
 		}
 		cfg.Carrier, cfg.CarrierDB = true, *carrier
+	}
+	if err := checkBits(fs.Changed("bits"), *bits); err != nil {
+		return err
+	}
+	if *bits != 0 && cfg.Mode != "usb" && cfg.Mode != "lsb" {
+		return usagef("--bits applies to usb and lsb (am and dsb use no phase splitter)")
 	}
 	if fs.Changed("depth") && cfg.Mode != "am" {
 		return usagef("--depth applies to --mode am")
@@ -246,6 +263,10 @@ func runTx(e *env, args []string) error {
 				amp = 0.5
 			}
 			return modem.NewToneSource(tones, amp, 48000, int64(math.Round(*seconds*48000))), func() {}, nil
+		}
+		// iq's WAV reader names a damaged header's fault precisely.
+		if err := iq.CheckWAV(input); err != nil {
+			return nil, nil, err
 		}
 		a, err := modem.OpenAudio(input)
 		if err != nil {
@@ -282,6 +303,20 @@ func runTx(e *env, args []string) error {
 	if math.Abs(cfg.Offset)+top >= cfg.OutRate/2 {
 		closeSrc()
 		return usagef("--offset %g Hz puts the signal (up to %g Hz from the carrier) beyond the output's Nyquist band ±%g Hz", cfg.Offset, top, cfg.OutRate/2)
+	}
+
+	// --bits: the splitter's length is chosen as without it (the default
+	// grows on the exact design), then its coefficients are quantised.
+	var exactDB float64
+	if *bits != 0 {
+		m0, err := modem.NewModulator(cfg)
+		if err != nil {
+			return usagef("%v", err)
+		}
+		sp := m0.Splitter()
+		s := sp.Spec()
+		exactDB = hilbert.Analyze(sp, s.Low, s.High).SuppressionMinDB
+		cfg.Splitter = hilbert.Spec{Design: s.Design, Taps: s.Taps, Sections: s.Sections, Bits: *bits}
 	}
 
 	sv, err := modem.NewSurvey(cfg)
@@ -384,6 +419,9 @@ func runTx(e *env, args []string) error {
 			l = s.Sections
 		}
 		comment += fmt.Sprintf("; %s splitter %s %d, predicted opposite-sideband suppression %.1f dB", cfg.Method, s.Design, l, a.SuppressionMinDB)
+		if s.Bits != 0 {
+			comment += fmt.Sprintf(" with %d-bit coefficients (exact design %.1f dB)", s.Bits, exactDB)
+		}
 	}
 	meta.Description = comment
 	meta.Annotations = []iq.Annotation{{
@@ -442,7 +480,7 @@ func runTx(e *env, args []string) error {
 		lv.Add(y)
 		if werr == nil {
 			if _, err := w.Write(y); err != nil {
-				werr = fmt.Errorf("%s: %w", *out, err)
+				werr = fmt.Errorf("%s: %w", outName(*out), err)
 			}
 			bar.Add(len(y))
 		}
@@ -483,6 +521,12 @@ func runTx(e *env, args []string) error {
 	rep.AverageDBFS = 10 * math.Log10(lv.Energy()/math.Max(1, float64(written)))
 	rep.PEPToAverageDB = rep.PEPdBFS - rep.AverageDBFS
 	rep.SuppressionDB = math.Round(10*predictedDB) / 10
+	if *bits != 0 {
+		// predicted_suppression_db keeps its meaning (the exact design);
+		// the file was made with the quantised one.
+		rep.Bits, rep.QuantizedDB = *bits, rep.SuppressionDB
+		rep.SuppressionDB = math.Round(10*exactDB) / 10
+	}
 	if *asJSON {
 		enc := json.NewEncoder(e.stdout)
 		enc.SetIndent("", "  ")
@@ -493,8 +537,13 @@ func runTx(e *env, args []string) error {
 	if !*quiet {
 		fmt.Fprintf(e.stderr, "tx: %s %s, %d samples at %g Hz (%.2f s): PEP %.2f dBFS, average %.2f dBFS, PEP-to-average %.2f dB\n",
 			*out, strings.ToUpper(cfg.Mode), written, cfg.OutRate, rep.DurationS, rep.PEPdBFS, rep.AverageDBFS, rep.PEPToAverageDB)
-		if rep.SuppressionDB > 0 && rep.SuppressionDB < 60 {
-			e.warnf("the splitter's predicted opposite-sideband suppression is only %.1f dB over %g:%g Hz (more --taps or --sections raise it)", rep.SuppressionDB, lo, hi)
+		used := rep.SuppressionDB
+		if rep.Bits != 0 {
+			used = rep.QuantizedDB
+			fmt.Fprintf(e.stderr, "tx: splitter with %d-bit coefficients: predicted suppression %.1f dB (exact design %.1f dB)\n", rep.Bits, rep.QuantizedDB, rep.SuppressionDB)
+		}
+		if used > 0 && used < 60 {
+			e.warnf("the splitter's predicted opposite-sideband suppression is only %.1f dB over %g:%g Hz (more --taps, --sections or --bits raise it)", used, lo, hi)
 		}
 		if pep > 1 {
 			e.warnf("PEP above full scale; integer formats clip")

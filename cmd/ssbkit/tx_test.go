@@ -159,7 +159,7 @@ func TestTxBadInput(t *testing.T) {
 		want string
 	}{
 		{[]string{notWAV}, exitFailure, "not a WAV"},
-		{[]string{empty}, exitFailure, "no audio samples"},
+		{[]string{empty}, exitFailure, "no samples"},
 		{[]string{filepath.Join(dir, "missing.wav")}, exitFailure, "missing.wav"},
 		{[]string{silent}, exitFailure, silent + ": the audio is silent within the pass band 300:2700 Hz"},
 		{[]string{silent, "--band", "off"}, exitFailure, silent + ": the audio is silent"},

@@ -4,6 +4,8 @@ import (
 	"cmp"
 	"math"
 	"slices"
+
+	"ssbkit/modem"
 )
 
 // Kinds of detected signal.
@@ -29,6 +31,16 @@ type Signal struct {
 	SNRdB float64
 	// Kind is usb, lsb, am, carrier or unknown.
 	Kind string
+	// EdgeOffsetHz is, for usb and lsb, the carrier placed from the
+	// spectrum's edge (OffsetHz as Detect returns it); CarrierRefiner may
+	// then move OffsetHz to the carrier found from the voice.
+	EdgeOffsetHz float64
+	// TuningConfidence is CarrierRefiner's confidence in OffsetHz (usb
+	// and lsb; 0: not refined, OffsetHz is the edge estimate).
+	TuningConfidence float64
+	// Track is the refined carrier against time (usb and lsb, after
+	// CarrierRefiner; nil otherwise).
+	Track []TunePoint
 }
 
 // DetectOptions tunes Detect. The zero value gives the documented
@@ -85,30 +97,8 @@ func (o DetectOptions) withDefaults() DetectOptions {
 }
 
 // smooth returns the moving average of x over w bins (w odd), the ends
-// averaging over the bins present.
-func smooth(x []float64, w int) []float64 {
-	out := make([]float64, len(x))
-	h := w / 2
-	var acc float64
-	cnt := 0
-	// running window [j-h, j+h]
-	for j := 0; j < h && j < len(x); j++ {
-		acc += x[j]
-		cnt++
-	}
-	for j := range x {
-		if k := j + h; k < len(x) {
-			acc += x[k]
-			cnt++
-		}
-		if k := j - h - 1; k >= 0 {
-			acc -= x[k]
-			cnt--
-		}
-		out[j] = acc / float64(cnt)
-	}
-	return out
-}
+// averaging over the bins present (modem.MovingAverage).
+func smooth(x []float64, w int) []float64 { return modem.MovingAverage(nil, x, w) }
 
 // smoothBins converts a smoothing width in Hz to an odd bin count.
 func smoothBins(hz, binHz float64) int {
@@ -289,8 +279,10 @@ func Detect(psd []float64, rate float64, opt DetectOptions) []Signal {
 			switch {
 			case rel < -centroidSkew:
 				s.Kind, s.OffsetHz = KindUSB, s.LowHz-opt.AudioLowHz
+				s.EdgeOffsetHz = s.OffsetHz
 			case rel > centroidSkew:
 				s.Kind, s.OffsetHz = KindLSB, s.HighHz+opt.AudioLowHz
+				s.EdgeOffsetHz = s.OffsetHz
 			default:
 				s.Kind, s.OffsetHz = KindUnknown, mid
 			}

@@ -47,6 +47,13 @@
 // AudioLowHz (default 300 Hz, the usual low edge of a voice transmitter,
 // common practice) outside the steep edge nearest the voice energy.
 //
+// CarrierRefiner then finds an SSB carrier from the voice itself in a
+// second pass over the capture: each usb/lsb signal is narrowed to about
+// 6 kHz around the middle of its pass band and analysed by
+// modem.TuneEstimator (the pitch harmonics of voiced speech, 3 s windows
+// 1 s apart); the carrier becomes the median of the windows' estimates,
+// the edge estimate is kept beside it, with a confidence.
+//
 // # Measuring a transmission
 //
 // A Measurer reports, for a carrier at offset c and an audio band

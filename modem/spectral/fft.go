@@ -1,9 +1,9 @@
 package spectral
 
 import (
-	"math"
-
 	"gonum.org/v1/gonum/dsp/fourier"
+
+	"ssbkit/internal/fft"
 )
 
 // transformer computes an in-place forward DFT of the segments
@@ -13,103 +13,17 @@ import (
 // leaving bin perm[p] at position p (perm is the transformer's; nil means
 // natural order).
 type transformer interface {
-	transform(x []complex128)
+	Transform(x []complex128)
 }
 
-// radix4 is a radix-4 decimation-in-frequency FFT for power-of-two
-// lengths (a final radix-2 pass when log₂n is odd), in place, with the
-// bins left in digit-reversed order. A Welch average only needs |X_k|²
-// summed per bin, so the reordering is done once on the sum, not on every
-// segment.
-//
-// One pass over a block of length L = 4m computes, for i < m and
-// W_L = e^{−j2π/L},
-//
-//	y_q[i] = W_L^{iq} · Σ_{r=0}^{3} x[i + r·m]·(−j)^{rq},  q = 0…3,
-//
-// and y_q is the input of the length-m transform that yields the bins
-// X[4k + q] (E. O. Brigham, The Fast Fourier Transform and Its
-// Applications, 1988, ch. 10, radix-4 decimation in frequency).
-//
-// Hand-written because the libraries are slow at the lengths spectrum
-// and measure use. Measured on the project's 2-core machine while it was
-// shared (go test -bench, one core, complex128 in place; quieter runs):
-//
-//	n        gonum CmplxFFT   go-dsp fft.FFT          radix4 Go   radix4 AVX2
-//	4096     0.31 ms          0.41 ms (34 allocs)     0.027 ms    0.011 ms
-//	16384    1.56 ms          1.08 ms (37 allocs)     0.14 ms     0.048 ms
-//	65536    7.4 ms           4.5 ms (2.6 MB, 41)     0.57 ms     0.22 ms
-//
-// (github.com/mjibson/go-dsp/fft also takes 32 ms at n = 49152, through
-// Bluestein's algorithm, and allocates its output on every call.) On
-// amd64 with AVX2 and FMA the passes run butterfliesAVX2 (fft_amd64.s);
-// the build tag purego, or another CPU, keeps the Go loop, which is the
-// reference. TestRadix4 checks radix4 against gonum's transform.
-type radix4 struct {
-	n int
-	// per radix-4 pass st of quarter length m: tw1[st][i] = W^i,
-	// tw2[st][i] = W^{2i}, tw3[st][i] = W^{3i}, i < m
-	tw1, tw2, tw3 [][]complex128
-	perm          []int32 // perm[p] is the bin (FFT order) left at position p
-	last          int     // block length left for tail: 1, 2, 4 or 8
-}
-
-// newRadix4 returns the plan for length n, a power of two ≥ 1.
-func newRadix4(n int) *radix4 {
-	if n < 1 || n&(n-1) != 0 {
-		panic("spectral: radix-4 FFT length not a power of two")
-	}
-	f := &radix4{n: n, perm: make([]int32, n)}
-	l := n
-	for ; l >= 16; l /= 4 {
-		m := l / 4
-		t := [3][]complex128{make([]complex128, m), make([]complex128, m), make([]complex128, m)}
-		for i := range m {
-			for q := 1; q <= 3; q++ {
-				s, c := math.Sincos(-2 * math.Pi * float64(q*i) / float64(l))
-				t[q-1][i] = complex(c, s)
-			}
-		}
-		f.tw1 = append(f.tw1, t[0])
-		f.tw2 = append(f.tw2, t[1])
-		f.tw3 = append(f.tw3, t[2])
-	}
-	f.last = l
-	for p := range f.perm {
-		f.perm[p] = int32(digitReversed(p, n))
-	}
-	return f
-}
-
-// digitReversed returns the bin left at position p of a block of length l
-// by the passes of radix4: position p lies in quarter q = p/(l/4), which
-// holds the bins ≡ q (mod 4).
-func digitReversed(p, l int) int {
-	switch l {
-	case 1:
-		return 0
-	case 2:
-		return p
-	}
-	m := l / 4
-	return p/m + 4*digitReversed(p%m, m)
-}
-
-// transform computes the DFT of x[:n] in place, digit-reversed.
-func (f *radix4) transform(x []complex128) {
-	n := f.n
-	x = x[:n]
-	l := n
-	for st := 0; l >= 16; st, l = st+1, l/4 {
-		f.pass(x, l, st)
-	}
-	f.tail(x, l)
-}
+// The power-of-two transforms are fft.Radix4 (package ssbkit/internal/fft,
+// shared with modem's tuning estimator); what follows fuses its first and
+// last passes with the Welch segment's windowing and squaring.
 
 // fused reports whether segmentPower can run fused passes: log₂n even
 // and n ≥ 16 (all radix-4, the usual spectrum lengths).
-func (f *radix4) fused() bool {
-	return f.n >= 16 && f.last == 4
+func fused(f *fft.Radix4) bool {
+	return f.Len() >= 16 && f.Last() == 4
 }
 
 // segmentPower is the Welch segment's whole work for a fused length: the
@@ -121,34 +35,35 @@ func (f *radix4) fused() bool {
 // saves one pass over the segment, or two (measured: +27 % for the Go
 // passes, +15 % with AVX2, where the vector first pass after a separate
 // conversion beats the fused Go one).
-func (f *radix4) segmentPower(work []complex128, seg []complex64, win []float64, out []float64, add bool, cols []float64, colOf []int32) {
-	n := f.n
+func segmentPower(f *fft.Radix4, work []complex128, seg []complex64, win []float64, out []float64, add bool, cols []float64, colOf []int32) {
+	n := f.Len()
 	work = work[:n]
 	seg = seg[:n]
 	win = win[:n]
 	m := n / 4
-	if haveAVX2 {
+	if fft.HaveAVX2 {
 		// converting apart and running the vector pass is faster than
 		// the fused Go pass
 		for i, v := range seg {
 			work[i] = complex(float64(real(v))*win[i], float64(imag(v))*win[i])
 		}
-		f.pass(work, n, 0)
+		f.Pass(work, n, 0)
 	} else {
-		f.firstPass(work, seg, win)
+		firstPass(f, work, seg, win)
 	}
 	l := m
 	for st := 1; l >= 16; st, l = st+1, l/4 {
-		f.pass(work, l, st)
+		f.Pass(work, l, st)
 	}
-	f.lastPassPower(work, out, add, cols, colOf)
+	lastPassPower(f, work, out, add, cols, colOf)
 }
 
 // firstPass is the first radix-4 pass of segmentPower reading seg·win.
-func (f *radix4) firstPass(work []complex128, seg []complex64, win []float64) {
-	n := f.n
+func firstPass(f *fft.Radix4, work []complex128, seg []complex64, win []float64) {
+	n := f.Len()
 	m := n / 4
-	tw1, tw2, tw3 := f.tw1[0][:m], f.tw2[0][:m], f.tw3[0][:m]
+	tw1, tw2, tw3 := f.Twiddles(0)
+	tw1, tw2, tw3 = tw1[:m], tw2[:m], tw3[:m]
 	s0, s1, s2, s3 := seg[:m], seg[m : 2*m][:m], seg[2*m : 3*m][:m], seg[3*m:][:m]
 	v0, v1, v2, v3 := win[:m], win[m : 2*m][:m], win[2*m : 3*m][:m], win[3*m:][:m]
 	x0, x1, x2, x3 := work[:m], work[m : 2*m][:m], work[2*m : 3*m][:m], work[3*m:][:m]
@@ -174,8 +89,8 @@ func (f *radix4) firstPass(work []complex128, seg []complex64, win []float64) {
 
 // lastPassPower is the last radix-4 pass (blocks of 4, no twiddles) of
 // segmentPower, writing |X|² instead of X.
-func (f *radix4) lastPassPower(work []complex128, out []float64, add bool, cols []float64, colOf []int32) {
-	n := f.n
+func lastPassPower(f *fft.Radix4, work []complex128, out []float64, add bool, cols []float64, colOf []int32) {
+	n := f.Len()
 	out = out[:n]
 	if cols != nil {
 		colOf = colOf[:n]
@@ -214,95 +129,9 @@ func (f *radix4) lastPassPower(work []complex128, out []float64, add bool, cols 
 	}
 }
 
-// pass is one radix-4 pass over the blocks of length l of x, with the
-// twiddles of pass st.
-func (f *radix4) pass(x []complex128, l, st int) {
-	n := len(x)
-	m := l / 4
-	w1, w2, w3 := f.tw1[st][:m], f.tw2[st][:m], f.tw3[st][:m]
-	for s := 0; s < n; s += l {
-		b := x[s : s+l]
-		x0, x1, x2, x3 := b[:m], b[m:2*m], b[2*m:3*m], b[3*m:4*m]
-		if haveAVX2 {
-			butterfliesAVX2(&x0[0], &x1[0], &x2[0], &x3[0], &w1[0], &w2[0], &w3[0], m)
-			continue
-		}
-		butterfliesGo(x0, x1, x2, x3, w1, w2, w3)
-	}
-}
-
-// butterfliesGo computes, for i < len(x0), the four outputs y_q[i] of
-// the radix-4 butterfly (see radix4) in place of x0…x3[i], with the
-// twiddles w1[i] = W^i, w2[i] = W^{2i}, w3[i] = W^{3i}. It is the
-// reference for butterfliesAVX2.
-func butterfliesGo(x0, x1, x2, x3, w1, w2, w3 []complex128) {
-	x1, x2, x3 = x1[:len(x0)], x2[:len(x0)], x3[:len(x0)]
-	w1, w2, w3 = w1[:len(x0)], w2[:len(x0)], w3[:len(x0)]
-	for i := range x0 {
-		a, bb, c, d := x0[i], x1[i], x2[i], x3[i]
-		t0r, t0i := real(a)+real(c), imag(a)+imag(c)
-		t1r, t1i := real(a)-real(c), imag(a)-imag(c)
-		t2r, t2i := real(bb)+real(d), imag(bb)+imag(d)
-		t3r, t3i := imag(bb)-imag(d), real(d)-real(bb) // −j·(b − d)
-		v1, v2, v3 := w1[i], w2[i], w3[i]
-		x0[i] = complex(t0r+t2r, t0i+t2i)
-		ur, ui := t1r+t3r, t1i+t3i
-		x1[i] = complex(ur*real(v1)-ui*imag(v1), ur*imag(v1)+ui*real(v1))
-		ur, ui = t0r-t2r, t0i-t2i
-		x2[i] = complex(ur*real(v2)-ui*imag(v2), ur*imag(v2)+ui*real(v2))
-		ur, ui = t1r-t3r, t1i-t3i
-		x3[i] = complex(ur*real(v3)-ui*imag(v3), ur*imag(v3)+ui*real(v3))
-	}
-}
-
-// tail finishes blocks of length l ≤ 8 left by the radix-4 passes.
-func (f *radix4) tail(x []complex128, l int) {
-	n := len(x)
-	switch l {
-	case 8: // a radix-4 pass of length 8 then radix-2 pairs
-		w1 := complex(math.Sqrt2/2, -math.Sqrt2/2)  // W_8
-		w3 := complex(-math.Sqrt2/2, -math.Sqrt2/2) // W_8³
-		for s := 0; s < n; s += 8 {
-			b := x[s : s+8]
-			for i := range 2 {
-				a, bb, c, d := b[i], b[i+2], b[i+4], b[i+6]
-				t0, t1 := a+c, a-c
-				t2 := bb + d
-				t3 := complex(imag(bb)-imag(d), real(d)-real(bb))
-				b[i] = t0 + t2
-				b[i+2] = t1 + t3
-				b[i+4] = t0 - t2
-				b[i+6] = t1 - t3
-				if i == 1 {
-					b[i+2] *= w1
-					b[i+4] *= complex(0, -1)
-					b[i+6] *= w3
-				}
-			}
-			for i := 0; i < 8; i += 2 {
-				b[i], b[i+1] = b[i]+b[i+1], b[i]-b[i+1]
-			}
-		}
-	case 4:
-		for s := 0; s < n; s += 4 {
-			b := x[s : s+4]
-			a, bb, c, d := b[0], b[1], b[2], b[3]
-			t0, t1 := a+c, a-c
-			t2 := bb + d
-			t3 := complex(imag(bb)-imag(d), real(d)-real(bb))
-			b[0], b[1], b[2], b[3] = t0+t2, t1+t3, t0-t2, t1-t3
-		}
-	case 2:
-		for s := 0; s < n; s += 2 {
-			b := x[s : s+2]
-			b[0], b[1] = b[0]+b[1], b[0]-b[1]
-		}
-	}
-}
-
 // gonumFFT transforms lengths that are not powers of two with gonum's
 // mixed-radix FFT (natural order). A CmplxFFT keeps work space, so each
 // goroutine has its own.
 type gonumFFT struct{ f *fourier.CmplxFFT }
 
-func (g gonumFFT) transform(x []complex128) { g.f.Coefficients(x, x) }
+func (g gonumFFT) Transform(x []complex128) { g.f.Coefficients(x, x) }

@@ -4,6 +4,8 @@ import (
 	"math"
 
 	"gonum.org/v1/gonum/dsp/window"
+
+	"ssbkit/internal/fft"
 )
 
 // bandIsolator passes the band centre ± half Hz through a linear-phase FIR
@@ -22,7 +24,7 @@ import (
 // position knows its time index.
 type bandIsolator struct {
 	l, m   int
-	fft    *radix4
+	fft    *fft.Radix4
 	h      []complex128 // filter transform (digit-reversed), scaled by 1/m
 	tIdx   []int32      // time index of each position of the second transform
 	buf    []complex128
@@ -57,16 +59,16 @@ func newBandIsolator(rate, centre, half, transition float64) *bandIsolator {
 		taps[i] = complex(v*c, v*s)
 	}
 	b := &bandIsolator{
-		l: l, m: m, fft: newRadix4(m), buf: make([]complex128, m),
+		l: l, m: m, fft: fft.NewRadix4(m), buf: make([]complex128, m),
 		y: make([]complex128, m), nat: make([]complex128, m), tIdx: make([]int32, m),
 	}
-	b.fft.transform(taps)
+	b.fft.Transform(taps)
 	b.h = taps
 	k := 1 / (dc * float64(m)) // unity gain in the passband
 	for i := range b.h {
 		b.h[i] *= complex(k, 0)
 	}
-	for p, bin := range b.fft.perm {
+	for p, bin := range b.fft.Perm() {
 		b.tIdx[p] = int32((m - int(bin)) % m)
 	}
 	b.fill = l - 1 // the first block starts with l−1 zeros of history
@@ -95,16 +97,16 @@ func (b *bandIsolator) add(x []complex64) {
 func (b *bandIsolator) block(end int) {
 	y := b.y
 	copy(y, b.buf)
-	b.fft.transform(y)
+	b.fft.Transform(y)
 	h := b.h[:len(y)]
 	for i, v := range y {
 		y[i] = v * h[i]
 	}
 	nat := b.nat[:len(y)]
-	for p, bin := range b.fft.perm {
+	for p, bin := range b.fft.Perm() {
 		nat[bin] = y[p]
 	}
-	b.fft.transform(nat)
+	b.fft.Transform(nat)
 	start := b.l - 1
 	if !b.primed {
 		start += b.l - 1

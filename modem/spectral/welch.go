@@ -6,6 +6,8 @@ import (
 	"sync"
 
 	"gonum.org/v1/gonum/dsp/fourier"
+
+	"ssbkit/internal/fft"
 )
 
 // Options configures an Accumulator. The zero value is a Hann window with
@@ -67,9 +69,9 @@ type kernel struct {
 	n      int
 	w      []float64
 	s1, s2 float64
-	radix  *radix4 // nil: gonum per worker
-	perm   []int32 // position → bin in FFT order (nil: natural order)
-	inv    []int32 // bin → position
+	radix  *fft.Radix4 // nil: gonum per worker
+	perm   []int32     // position → bin in FFT order (nil: natural order)
+	inv    []int32     // bin → position
 	ncols  int
 	colOf  []int32 // position → waterfall column
 }
@@ -131,8 +133,8 @@ func NewAccumulatorOptions(fftSize int, rate float64, opt Options) *Accumulator 
 	k := &kernel{n: n, w: opt.Window.Coefficients(n)}
 	k.s1, k.s2 = windowSums(k.w)
 	if n&(n-1) == 0 {
-		k.radix = newRadix4(n)
-		k.perm = k.radix.perm
+		k.radix = fft.NewRadix4(n)
+		k.perm = k.radix.Perm()
 		k.inv = make([]int32, n)
 		for p, b := range k.perm {
 			k.inv[b] = int32(p)
@@ -385,8 +387,8 @@ func (w *worker) segment(seg []complex64, out, cols []float64, add bool) {
 	if cols != nil {
 		clear(cols)
 	}
-	if k.radix != nil && k.radix.fused() {
-		k.radix.segmentPower(w.work, seg, k.w, out, add, cols, k.colOf)
+	if k.radix != nil && fused(k.radix) {
+		segmentPower(k.radix, w.work, seg, k.w, out, add, cols, k.colOf)
 		return
 	}
 	win, work := k.w, w.work[:len(k.w)]
@@ -394,7 +396,7 @@ func (w *worker) segment(seg []complex64, out, cols []float64, add bool) {
 	for i, v := range seg {
 		work[i] = complex(float64(real(v))*win[i], float64(imag(v))*win[i])
 	}
-	w.fft.transform(work)
+	w.fft.Transform(work)
 	out = out[:len(work)]
 	switch {
 	case cols != nil:

@@ -1,12 +1,12 @@
 //go:build amd64 && !purego
 
-package spectral
+package fft
 
 import "golang.org/x/sys/cpu"
 
-// haveAVX2 reports whether butterfliesAVX2 runs on this CPU; without it
+// HaveAVX2 reports whether butterfliesAVX2 runs on this CPU; without it
 // the radix-4 passes use their Go loop (butterfliesGo), the reference.
-var haveAVX2 = cpu.X86.HasAVX2 && cpu.X86.HasFMA
+var HaveAVX2 = cpu.X86.HasAVX2 && cpu.X86.HasFMA
 
 // butterfliesAVX2 is butterfliesGo for m a multiple of 2, two butterflies
 // per step in 256-bit registers (fft_amd64.s). The complex products use
