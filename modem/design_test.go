@@ -144,3 +144,38 @@ func TestKaiserCache(t *testing.T) {
 		}
 	}
 }
+
+func TestKaiserShifted(t *testing.T) {
+	// kaiserMeetShift delays the Kaiser low-pass's response by a fraction
+	// of a sample: its pass band follows the ideal delayed low-pass,
+	// H(f) = e^{−j2πf(M/2 + shift)} (the window method's target,
+	// Oppenheim & Schafer, 3rd ed., sec. 7.5.3, with the sinc and the
+	// window moved together), to the design ripple δ in magnitude and δ
+	// rad in phase, and its stop band keeps δ = 10^(−A/20). Its length
+	// is the unshifted design's plus two whatever the shift.
+	const fc, tw, atten = 1200.0 / 6000, 450.0 / 6000, 80.0
+	delta := math.Pow(10, -atten/20)
+	base := len(kaiserMeetShift(fc, tw, atten, 0))
+	for _, shift := range []float64{0.3, -0.5, 0.97, -1} {
+		h := kaiserMeetShift(fc, tw, atten, shift)
+		if len(h) != base+2 {
+			t.Fatalf("shift %g: %d taps, want %d", shift, len(h), base+2)
+		}
+		c := float64(len(h)-1)/2 + shift
+		var worstMag, worstPh, worstStop float64
+		for f := 0.0; f <= fc-tw/2; f += 0.0005 {
+			for _, ff := range []float64{f, -f} {
+				g := FreqResponse(h, ff, 1)
+				worstMag = max(worstMag, math.Abs(cmplx.Abs(g)-1))
+				ph := cmplx.Phase(g * cmplx.Exp(complex(0, 2*math.Pi*ff*c)))
+				worstPh = max(worstPh, math.Abs(ph))
+			}
+		}
+		for f := fc + tw/2; f <= 0.5; f += 0.0005 {
+			worstStop = max(worstStop, cmplx.Abs(FreqResponse(h, f, 1)))
+		}
+		if worstMag > delta || worstPh > delta || worstStop > delta {
+			t.Errorf("shift %g: ripple %.2e, phase error %.2e rad, stop band %.2e, want each ≤ %.0e", shift, worstMag, worstPh, worstStop, delta)
+		}
+	}
+}
