@@ -26,7 +26,7 @@ func TestReceiverFineTuneChanneliser(t *testing.T) {
 		{Rate: rate, Offset: -60e3, Mode: LSB, FineTune: true},
 	}
 	got, r := receive(t, FrontChanneliser, cfgs, x)
-	n := len(x) * 48000 / int(rate) // audio samples at the default 48 kHz
+	n := len(x) * 48000 / int(rate)         // audio samples at the default 48 kHz
 	for i, w := range []float64{70, -110} { // true carrier minus tuned
 		if len(got[i]) != n {
 			t.Errorf("channel %d: %d samples, want %d", i, len(got[i]), n)
