@@ -37,7 +37,8 @@ that gave an estimate; tuning_confidence: 0–1, the mean window confidence,
 0 when the voice gave none). edge_offset_hz keeps the first estimate, 300 Hz
 (the usual low audio edge, common practice) outside the steep edge of the
 voice spectrum; without voiced speech (or from standard input, which
-cannot be read twice) offset_hz stays there. Frequencies are offsets from
+cannot be read twice) offset_hz stays there. A picture alone (no --list
+or --json) skips that second pass and marks the first estimates. Frequencies are offsets from
 the capture centre; freq_hz is absolute when the centre is known.
 
 The average is a Welch average over every sample of the capture (Hann
@@ -153,8 +154,13 @@ func runSpectrum(e *env, args []string) error {
 	dopt := spectral.DetectOptions{ThresholdDB: *thr}
 	signals := spectral.Detect(spec.Density, meta.Rate, dopt)
 	floor := spectral.DetectionFloor(spec.Density, meta.Rate, dopt)
-	if err := refineCarriers(e, in, cf, meta, signals, *quiet); err != nil {
-		return err
+	// Only a listing needs the refined SSB carriers: on the picture a
+	// marker moves by at most a few hundred hertz, so a picture alone
+	// skips the second pass.
+	if *list || *asJSON {
+		if err := refineCarriers(e, in, cf, meta, signals, *quiet); err != nil {
+			return err
+		}
 	}
 
 	if *out != "" {
