@@ -40,8 +40,8 @@ Examples:
 --auto reads the capture twice: first to find the signals (as "spectrum
 --list": Hann segments, 50 % overlap, at most 256 of them; a longer capture
 is sampled by 256 segments spread evenly over it, which finds the same
-signals at a fraction of the cost of averaging every sample), then to
-decode them. Signals of unknown kind (a few discrete lines, such as
+signals at a fraction of the cost of averaging every sample; SSB carriers
+then placed from the voice over the first 10 s), then to decode them. Signals of unknown kind (a few discrete lines, such as
 test tones, whose sideband the spectrum cannot tell) are skipped with a
 warning; tune them with --offset HZ:usb or HZ:lsb.
 
@@ -433,6 +433,14 @@ func parseChannelSpec(s string, def modem.Mode) (float64, modem.Mode, error) {
 	return f, m, nil
 }
 
+// autoRefineSeconds is how much of the capture rx --auto reads to place
+// SSB carriers by the voice, as spectrum --list does over its first minute
+// (spectral.RefineSeconds): a shorter look, since the decode's fine tuning
+// follows the carrier through the whole file anyway; it puts the tuned
+// frequency (and the file name's {freq}) within a few hertz of the
+// carrier instead of up to a hundred off.
+const autoRefineSeconds = 10
+
 // autoSegments is the most segments rx --auto transforms to find signals
 // (enough that the averaged noise floor is steady to about ±0.3 dB:
 // Welch's variance falls as 1/segments, from memory).
@@ -480,7 +488,11 @@ func detectChannels(e *env, in string, cf *captureFlags, quiet bool) (found []rx
 		}
 	}
 	bar.Done()
-	for _, s := range spectral.Detect(acc.PSD(), meta.Rate, spectral.DetectOptions{}) {
+	signals := spectral.Detect(acc.PSD(), meta.Rate, spectral.DetectOptions{})
+	if err := refineCarriers(e, in, cf, meta, signals, autoRefineSeconds, quiet); err != nil {
+		return nil, nil, err
+	}
+	for _, s := range signals {
 		var m modem.Mode
 		switch s.Kind {
 		case spectral.KindUSB:

@@ -158,7 +158,7 @@ func runSpectrum(e *env, args []string) error {
 	// marker moves by at most a few hundred hertz, so a picture alone
 	// skips the second pass.
 	if *list || *asJSON {
-		if err := refineCarriers(e, in, cf, meta, signals, *quiet); err != nil {
+		if err := refineCarriers(e, in, cf, meta, signals, 0, *quiet); err != nil {
 			return err
 		}
 	}
@@ -285,11 +285,11 @@ func readAll(src interface {
 }
 
 // refineCarriers tunes the usb and lsb signals by their voices
-// (spectral.CarrierRefiner) in a second pass over the first
-// spectral.RefineSeconds of the capture. Standard input cannot be read
-// twice: the edge estimates stay, with a warning.
-func refineCarriers(e *env, in string, cf *captureFlags, meta iq.Meta, signals []spectral.Signal, quiet bool) error {
-	r := spectral.NewCarrierRefiner(meta.Rate, signals, 0)
+// (spectral.CarrierRefiner) in a second pass over the first seconds of
+// the capture (spectral.RefineSeconds when 0). Standard input cannot be
+// read twice: the edge estimates stay, with a warning.
+func refineCarriers(e *env, in string, cf *captureFlags, meta iq.Meta, signals []spectral.Signal, seconds float64, quiet bool) error {
+	r := spectral.NewCarrierRefiner(meta.Rate, signals, seconds)
 	if !r.Needed() {
 		return nil
 	}
@@ -303,7 +303,10 @@ func refineCarriers(e *env, in string, cf *captureFlags, meta iq.Meta, signals [
 		return err
 	}
 	defer src.Close()
-	total := int64(math.Ceil(spectral.RefineSeconds * meta.Rate))
+	if seconds <= 0 {
+		seconds = spectral.RefineSeconds
+	}
+	total := int64(math.Ceil(seconds * meta.Rate))
 	if meta.Samples >= 0 {
 		total = min(total, meta.Samples)
 	}
