@@ -175,6 +175,13 @@ func readSigMFMeta(r io.Reader, name string) (Meta, sigmfExtra, error) {
 		if c.Frequency != nil {
 			m.Center, m.HasCenter = *c.Frequency, true
 		}
+		prev, known := m.Center, m.HasCenter
+		for _, c := range sm.Captures[1:] {
+			if c.Frequency != nil && (!known || *c.Frequency != prev) {
+				m.Retunes = append(m.Retunes, Retune{SampleStart: *c.SampleStart, Center: *c.Frequency})
+				prev, known = *c.Frequency, true
+			}
+		}
 		if c.Datetime != "" {
 			t, err := time.Parse(time.RFC3339Nano, c.Datetime)
 			if err != nil {

@@ -37,6 +37,24 @@ func TestSigMFHandWritten(t *testing.T) {
 	if len(m.Annotations) != 2 || m.Annotations[0] != want[0] || m.Annotations[1] != want[1] {
 		t.Errorf("annotations %+v, want %+v", m.Annotations, want)
 	}
+	// its second capture segment retunes to 7.080 MHz at sample 48000
+	if len(m.Retunes) != 1 || m.Retunes[0] != (Retune{SampleStart: 48000, Center: 7080000}) {
+		t.Errorf("retunes %+v", m.Retunes)
+	}
+}
+
+// TestSigMFSegmentsOneCentre: capture segments that repeat the first
+// segment's core:frequency, or leave it out, are no retune.
+func TestSigMFSegmentsOneCentre(t *testing.T) {
+	for _, caps := range []string{
+		`{"core:sample_start":0,"core:frequency":7.1e6},{"core:sample_start":10,"core:frequency":7.1e6}`,
+		`{"core:sample_start":0,"core:frequency":7.1e6},{"core:sample_start":10}`,
+	} {
+		m, err := ReadSigMFMeta(strings.NewReader(`{"global":{"core:datatype":"cu8","core:sample_rate":48000},"captures":[`+caps+`]}`), "seg.sigmf-meta")
+		if err != nil || !m.HasCenter || m.Center != 7.1e6 || len(m.Retunes) != 0 {
+			t.Errorf("%s: %+v, %v; want centre 7.1 MHz and no retune", caps, m, err)
+		}
+	}
 }
 
 // TestSigMFWriteValid writes metadata and checks it against the required

@@ -22,6 +22,18 @@ type Meta struct {
 	Description string    // SigMF core:description
 	Datetime    time.Time // start of the capture; zero if unknown
 	Annotations []Annotation
+	// Retunes lists the SigMF capture segments after the first whose
+	// core:frequency differs from the segment's before (a recording
+	// retuned part-way).
+	// Center is the first segment's; offsets are relative to it
+	// throughout, so frequencies after a retune are not the air's.
+	Retunes []Retune
+}
+
+// Retune is a change of centre frequency at a sample of the recording.
+type Retune struct {
+	SampleStart int64
+	Center      float64 // Hz
 }
 
 // Duration returns the length of the capture in seconds, or −1 when the

@@ -87,6 +87,14 @@ func openCapture(e *env, path string, cf *captureFlags) (*iq.Source, error) {
 		if opt.HasCenter && m.Center != opt.Center {
 			e.warnf("--center %s ignored: %s says %.10g Hz", cf.center, path, m.Center)
 		}
+		if r := m.Retunes; len(r) > 0 {
+			more := ""
+			if len(r) > 1 {
+				more = fmt.Sprintf("; %d retunes in all", len(r))
+			}
+			e.warnf("%s is retuned part-way (to %.10g Hz at sample %d%s): frequencies are taken from the first centre, %.10g Hz, throughout",
+				path, r[0].Center, r[0].SampleStart, more, m.Center)
+		}
 	}
 	return src, nil
 }

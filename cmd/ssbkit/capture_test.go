@@ -274,3 +274,27 @@ func TestOpenCaptureIgnoredFlags(t *testing.T) {
 		}
 	}
 }
+
+// A SigMF recording retuned part-way (a second capture segment with
+// another core:frequency; SigMF v1.0.0 allows it) is read with its first
+// centre throughout, and every command that opens it says so once.
+func TestOpenCaptureRetuned(t *testing.T) {
+	dir := t.TempDir()
+	x := make([]complex64, 4096)
+	raw := filepath.Join(dir, "r.cf32")
+	writeCapture(t, raw, iq.CF32, 48000, x)
+	if err := os.Rename(raw, filepath.Join(dir, "r.sigmf-data")); err != nil {
+		t.Fatal(err)
+	}
+	meta := filepath.Join(dir, "r.sigmf-meta")
+	err := os.WriteFile(meta, []byte(`{"global":{"core:datatype":"cf32_le","core:sample_rate":48000,"core:version":"1.0.0"},
+"captures":[{"core:sample_start":0,"core:frequency":7090000},{"core:sample_start":2048,"core:frequency":7095000},{"core:sample_start":3000,"core:frequency":7090000}],"annotations":[]}`), 0o644)
+	if err != nil {
+		t.Fatal(err)
+	}
+	code, out, errs := runCmd(t, "info", "--json", meta)
+	want := "ssbkit: info: warning: " + meta + " is retuned part-way (to 7095000 Hz at sample 2048; 2 retunes in all): frequencies are taken from the first centre, 7090000 Hz, throughout"
+	if code != exitOK || strings.TrimSpace(errs) != want || !strings.Contains(out, `"center_hz": 7090000`) {
+		t.Errorf("exit %d, stderr %q, want %q\n%s", code, errs, want, out)
+	}
+}
