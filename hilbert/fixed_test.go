@@ -323,38 +323,3 @@ func TestFixedAllpassAccumulator(t *testing.T) {
 		}
 	}
 }
-
-func TestFixedAllpassStreaming(t *testing.T) {
-	// Block-wise output equals whole-signal output; Reset restarts; no
-	// allocation per block.
-	sp := mustNew(t, Spec{Design: "allpass", Sections: 7, Rate: 8000, Low: 300, High: 2700, Bits: 16})
-	r := rand.New(rand.NewPCG(5, 6))
-	src := make([]float32, 3000)
-	for i := range src {
-		src[i] = float32(0.4 * r.NormFloat64())
-	}
-	want := sp.NewFilter().Process(nil, src)
-	for _, bs := range []int{1, 3, 64, 1000, 2999} {
-		f := sp.NewFilter()
-		got := make([]complex64, len(src))
-		for off := 0; off < len(src); off += bs {
-			end := min(off+bs, len(src))
-			f.Process(got[off:end], src[off:end])
-		}
-		for i := range got {
-			if got[i] != want[i] {
-				t.Fatalf("block %d: out[%d] = %v, whole %v", bs, i, got[i], want[i])
-			}
-		}
-	}
-	f := sp.NewFilter()
-	f.Process(nil, src[:123])
-	f.Reset()
-	if got := f.Process(nil, src); got[2999] != want[2999] || got[0] != want[0] {
-		t.Errorf("Reset did not restart")
-	}
-	dst := make([]complex64, len(src))
-	if n := testing.AllocsPerRun(20, func() { f.Process(dst, src) }); n != 0 {
-		t.Errorf("%v allocations per block", n)
-	}
-}
