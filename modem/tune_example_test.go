@@ -14,22 +14,7 @@ import (
 // 37 Hz.
 func ExampleTuneEstimator() {
 	const rate = 6000
-	x := make([]complex64, 8*rate)
-	var phase float64
-	for n := range x {
-		t := float64(n) / rate
-		f0 := 110 + 20*math.Sin(2*math.Pi*0.4*t)
-		phase += 2 * math.Pi * f0 / rate
-		var v complex128
-		for k := 1; float64(k)*f0 < 2700; k++ {
-			if float64(k)*f0 > 300 {
-				// harmonic k, 37 Hz up, the carrier at −1500 Hz
-				s, c := math.Sincos(float64(k)*phase + 2*math.Pi*(37-1500)*t)
-				v += complex(c, s) / complex(float64(k), 0)
-			}
-		}
-		x[n] = complex64(v)
-	}
+	x := voicedUSB(rate, 8, 37, -1500)
 	e, err := modem.NewTuneEstimator(modem.TuneConfig{Rate: rate, Carrier: -1500, Mode: modem.USB})
 	if err != nil {
 		panic(err)
@@ -51,21 +36,7 @@ func ExampleTuneEstimator() {
 // found from the voice, which the report gives at the start and the end.
 func ExampleFineTuner() {
 	const rate = 6000
-	x := make([]complex64, 8*rate)
-	var phase float64
-	for n := range x {
-		t := float64(n) / rate
-		f0 := 110 + 20*math.Sin(2*math.Pi*0.4*t)
-		phase += 2 * math.Pi * f0 / rate
-		var v complex128
-		for k := 1; float64(k)*f0 < 2700; k++ {
-			if float64(k)*f0 > 300 {
-				s, c := math.Sincos(float64(k)*phase + 2*math.Pi*(37-1500)*t)
-				v += complex(c, s) / complex(float64(k), 0)
-			}
-		}
-		x[n] = complex64(v)
-	}
+	x := voicedUSB(rate, 8, 37, -1500)
 	ft, err := modem.NewFineTuner(modem.TuneConfig{Rate: rate, Carrier: -1500, Mode: modem.USB}, 0)
 	if err != nil {
 		panic(err)
@@ -82,4 +53,26 @@ func ExampleFineTuner() {
 	// Output:
 	// delay 18432 samples (3.072 s), 66432 samples out
 	// correction within 2 Hz of +37 Hz at the start: true, at the end: true; 6 of 6 windows
+}
+
+// voicedUSB returns seconds of a voiced USB signal at rate: the harmonics
+// within 300–2700 Hz of a pitch wandering between 90 and 130 Hz, each of
+// amplitude 1/k, heard errHz above the assumed carrier at carrier Hz.
+func voicedUSB(rate, seconds, errHz, carrier float64) []complex64 {
+	x := make([]complex64, int(seconds*rate))
+	var phase float64
+	for n := range x {
+		t := float64(n) / rate
+		f0 := 110 + 20*math.Sin(2*math.Pi*0.4*t)
+		phase += 2 * math.Pi * f0 / rate
+		var v complex128
+		for k := 1; float64(k)*f0 < 2700; k++ {
+			if float64(k)*f0 > 300 {
+				s, c := math.Sincos(float64(k)*phase + 2*math.Pi*(errHz+carrier)*t)
+				v += complex(c, s) / complex(float64(k), 0)
+			}
+		}
+		x[n] = complex64(v)
+	}
+	return x
 }
