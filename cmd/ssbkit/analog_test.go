@@ -121,10 +121,7 @@ func TestAnalogTextAndTarget(t *testing.T) {
 }
 
 func TestAnalogBadInput(t *testing.T) {
-	for _, c := range []struct {
-		args []string
-		want string
-	}{
+	checkUsageErrors(t, "analog", nil, []usageCase{
 		{[]string{"--r-tol", "-1"}, "--r-tol -1"},
 		{[]string{"--c-tol", "50"}, "below 50"},
 		{[]string{"--series", "E7"}, "unknown series"},
@@ -151,12 +148,7 @@ func TestAnalogBadInput(t *testing.T) {
 		{[]string{"--r-gain", "1e12"}, "--r-gain"},
 		{[]string{"--bom", "-"}, "needs a file"},
 		{[]string{"extra"}, "no arguments"},
-	} {
-		code, _, errs := runCmd(t, append([]string{"analog"}, c.args...)...)
-		if code != exitUsage || !strings.Contains(errs, c.want) || strings.Count(errs, "\n") != 1 || !strings.HasPrefix(errs, "ssbkit: analog: ") {
-			t.Errorf("analog %q = %d, %q; want exit 2 with %q", c.args, code, errs, c.want)
-		}
-	}
+	})
 }
 
 func TestParsePart(t *testing.T) {

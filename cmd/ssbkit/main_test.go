@@ -139,3 +139,23 @@ func TestStandardOutputUse(t *testing.T) {
 		}
 	}
 }
+
+// usageCase is a command line that must be refused as a usage error whose
+// message holds want.
+type usageCase struct {
+	args []string
+	want string
+}
+
+// checkUsageErrors runs cmd with each case's arguments after common and
+// wants exit 2 and exactly one stderr line "ssbkit: CMD: …" holding want.
+func checkUsageErrors(t *testing.T, cmd string, common []string, cases []usageCase) {
+	t.Helper()
+	for _, c := range cases {
+		args := append(append([]string{cmd}, common...), c.args...)
+		code, _, errs := runCmd(t, args...)
+		if code != exitUsage || !strings.Contains(errs, c.want) || strings.Count(errs, "\n") != 1 || !strings.HasPrefix(errs, "ssbkit: "+cmd+": ") {
+			t.Errorf("%q = %d, %q; want exit 2 and one line with %q", args, code, errs, c.want)
+		}
+	}
+}

@@ -77,10 +77,7 @@ func TestSplitterCoeffsAndExport(t *testing.T) {
 }
 
 func TestSplitterBadInput(t *testing.T) {
-	for _, c := range []struct {
-		args []string
-		want string
-	}{
+	checkUsageErrors(t, "splitter", nil, []usageCase{
 		{[]string{"--design", "magic"}, "allowed"},
 		{[]string{"--taps", "64"}, "odd"},
 		{[]string{"--design", "allpass", "--sections", "99"}, "sections must be 1 to"},
@@ -91,12 +88,7 @@ func TestSplitterBadInput(t *testing.T) {
 		{[]string{"--taps", "31", "--sections", "3"}, "exclude"},
 		{[]string{"--bits", "1"}, "--bits 1: want 2 to 32"},
 		{[]string{"--bits", "33"}, "--bits 33"},
-	} {
-		code, _, errs := runCmd(t, append([]string{"splitter"}, c.args...)...)
-		if code != exitUsage || !strings.Contains(errs, c.want) || strings.Count(errs, "\n") != 1 {
-			t.Errorf("splitter %q = %d, %q; want exit 2 with %q", c.args, code, errs, c.want)
-		}
-	}
+	})
 }
 
 func TestSplitterBits(t *testing.T) {

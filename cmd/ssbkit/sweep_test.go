@@ -85,10 +85,7 @@ func TestSweepOutputs(t *testing.T) {
 }
 
 func TestSweepBadInput(t *testing.T) {
-	for _, c := range []struct {
-		args []string
-		want string
-	}{
+	checkUsageErrors(t, "sweep", nil, []usageCase{
 		{[]string{"--designs", "magic"}, "allowed: rect, hamming"},
 		{[]string{"--taps", "8"}, "odd"},
 		{[]string{"--taps", "9:3"}, "START"},
@@ -101,12 +98,7 @@ func TestSweepBadInput(t *testing.T) {
 		{[]string{"--bits", "0"}, "--bits 0"},
 		{[]string{"--bits", "64"}, "want 2 to 32"},
 		{[]string{"--designs", "analog", "--sections", "17"}, "analog sections must be 1 to 16"},
-	} {
-		code, _, errs := runCmd(t, append([]string{"sweep"}, c.args...)...)
-		if code != exitUsage || !strings.Contains(errs, c.want) || strings.Count(errs, "\n") != 1 {
-			t.Errorf("sweep %q = %d, %q; want exit 2 with %q", c.args, code, errs, c.want)
-		}
-	}
+	})
 }
 
 func TestParseLengths(t *testing.T) {

@@ -71,17 +71,9 @@ func TestTxBits(t *testing.T) {
 
 func TestTxBitsBadInput(t *testing.T) {
 	out := filepath.Join(t.TempDir(), "o.cf32")
-	for _, c := range []struct {
-		args []string
-		want string
-	}{
+	checkUsageErrors(t, "tx", []string{"--tone", "1k", "-o", out}, []usageCase{
 		{[]string{"--bits", "1"}, "--bits 1: want 2 to 32"},
 		{[]string{"--bits", "40"}, "--bits 40"},
 		{[]string{"--bits", "16", "--mode", "am"}, "--bits applies to usb and lsb"},
-	} {
-		code, _, stderr := runCmd(t, append([]string{"tx", "--tone", "1k", "-o", out}, c.args...)...)
-		if code != exitUsage || !strings.Contains(stderr, c.want) || strings.Count(stderr, "\n") != 1 {
-			t.Errorf("%q: exit %d, %q", c.args, code, stderr)
-		}
-	}
+	})
 }
