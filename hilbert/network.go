@@ -118,12 +118,10 @@ func (n *Network) Analyze(low, high float64) Analysis {
 	r := analyzeBand(n, low, high)
 	f := (low + high) / 2
 	d := 1e-3 * f
-	p := n.Response(f+d) * cmplxConj(n.Response(f-d))
+	p := n.Response(f+d) * conj(n.Response(f-d))
 	r.DelayMS = 1000 * -math.Atan2(imag(p), real(p)) / (2 * math.Pi * 2 * d)
 	return r
 }
-
-func cmplxConj(c complex128) complex128 { return complex(real(c), -imag(c)) }
 
 // Tolerance says how far real parts stray from their nominal values.
 type Tolerance struct {
