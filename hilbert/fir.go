@@ -66,19 +66,19 @@ func Kaiser(seq []float64, beta float64) []float64 {
 	if n == 1 {
 		return seq
 	}
-	den := besselI0(beta)
+	den := BesselI0(beta)
 	for k := range seq {
 		r := 2*float64(k)/float64(n-1) - 1
-		seq[k] *= besselI0(beta*math.Sqrt(math.Max(0, 1-r*r))) / den
+		seq[k] *= BesselI0(beta*math.Sqrt(math.Max(0, 1-r*r))) / den
 	}
 	return seq
 }
 
-// besselI0 is the modified Bessel function of the first kind, order 0, by
+// BesselI0 is the modified Bessel function of the first kind, order 0, by
 // its power series Σ ((x/2)^k / k!)² (Abramowitz & Stegun 9.6.12), which
 // converges for all x; neither the standard library nor gonum's mathext
 // provides I0. Accurate to rounding for the |x| ≤ 40 used here.
-func besselI0(x float64) float64 {
+func BesselI0(x float64) float64 {
 	q := x * x / 4
 	sum, term := 1.0, 1.0
 	for k := 1; k < 500; k++ {

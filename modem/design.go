@@ -187,11 +187,11 @@ func windowedSinc(m int, fc, beta, shift float64) []float64 {
 		w = KaiserWindow(m+1, beta)
 	} else {
 		w = make([]float64, m+1)
-		i0b := besselI0(beta)
+		i0b := hilbert.BesselI0(beta)
 		for k := range w {
 			r := (float64(k) - float64(m)/2 - shift) / (float64(m) / 2)
 			if math.Abs(r) <= 1 {
-				w[k] = besselI0(beta*math.Sqrt(1-r*r)) / i0b
+				w[k] = hilbert.BesselI0(beta*math.Sqrt(1-r*r)) / i0b
 			}
 		}
 	}
@@ -206,13 +206,6 @@ func windowedSinc(m int, fc, beta, shift float64) []float64 {
 		h[k] /= sum
 	}
 	return h
-}
-
-// besselI0 returns I₀(x), read off hilbert.Kaiser, whose two-point window
-// is 1/I₀(β) at its ends (I₀(0) = 1): the series lives in package hilbert
-// for the phase-splitter designs, and one copy serves both packages.
-func besselI0(x float64) float64 {
-	return 1 / hilbert.Kaiser([]float64{1, 1}, x)[0]
 }
 
 // KaiserBandpass designs a linear-phase band-pass FIR with −6 dB points at
