@@ -164,16 +164,108 @@ func kaiserFixed(m int, fc, tw, attenDB, shift float64) []float64 {
 func edgeError(h []float64, pass, stop float64) float64 {
 	span := 6 / float64(len(h))
 	const pts = 192
-	var e float64
+	var fp, fstop []float64
 	for i := 0; i <= pts; i++ {
 		if f := pass - span*float64(i)/pts; f >= 0 {
-			e = math.Max(e, math.Abs(1-cmplx.Abs(FreqResponse(h, f, 1))))
+			fp = append(fp, f)
 		}
 		if f := stop + span*float64(i)/pts; f <= 0.5 {
-			e = math.Max(e, cmplx.Abs(FreqResponse(h, f, 1)))
+			fstop = append(fstop, f)
 		}
 	}
+	mag := func(fs []float64) []float64 {
+		a := make([]float64, len(fs))
+		if symmetricTaps(h) {
+			zeroPhaseResponses(a, h, fs)
+			for i := range a {
+				a[i] = math.Abs(a[i])
+			}
+			return a
+		}
+		for i, f := range fs {
+			a[i] = cmplx.Abs(FreqResponse(h, f, 1))
+		}
+		return a
+	}
+	var e float64
+	for _, v := range mag(fp) {
+		e = math.Max(e, math.Abs(1-v))
+	}
+	for _, v := range mag(fstop) {
+		e = math.Max(e, v)
+	}
 	return e
+}
+
+// symmetricTaps reports whether h[k] and h[L−1−k] agree for every k to
+// 10⁻¹³ of the largest tap: a symmetric design but for the rounding of
+// its window (see symmetric).
+func symmetricTaps(h []float64) bool {
+	var big float64
+	for _, v := range h {
+		big = math.Max(big, math.Abs(v))
+	}
+	for k, l := 0, len(h)-1; k < l; k, l = k+1, l-1 {
+		if !(math.Abs(h[k]-h[l]) <= 1e-13*big) {
+			return false
+		}
+	}
+	return true
+}
+
+// zeroPhaseResponses writes to a[i] the real amplitude A(fs[i]) of
+// symmetric taps h (f in cycles per sample), H(f) = e^{−jπf(L−1)}·A(f):
+// the pairs k, L−1−k sum to (h[k] + h[L−1−k])·cos(2πf(c−k)) about the
+// centre c = (L−1)/2 (Oppenheim & Schafer, 3rd ed., sec. 5.7.3, type I
+// and II linear-phase systems). The cosines come from the Chebyshev
+// recurrence cos((n+1)θ) = 2cos θ·cos(nθ) − cos((n−1)θ), restarted
+// exactly every 256 terms (its error grows as n·ε/sin θ, 10⁻¹⁰ at worst
+// for the lengths and frequencies designed here), four frequencies a pass so that their
+// recurrences overlap: a design evaluates hundreds of responses, at a
+// tenth of FreqResponse's cost, with errors far below the 10⁻⁴ it tests
+// against.
+func zeroPhaseResponses(a, h, fs []float64) {
+	l := len(h)
+	half := l / 2
+	var mid float64
+	if l%2 == 1 {
+		mid = h[half]
+	}
+	// pair n = 0, 1, …: taps half−1−n and l−half+n, at distance d0 + n
+	// from the centre
+	d0 := float64(l-1)/2 - float64(half-1)
+	for i := 0; i < len(fs); i += 4 {
+		var w, two, prev, cur, acc [4]float64
+		for j := range 4 {
+			if i+j < len(fs) {
+				w[j] = 2 * math.Pi * fs[i+j]
+			}
+			two[j] = 2 * math.Cos(w[j])
+			acc[j] = mid
+		}
+		for n0 := 0; n0 < half; n0 += 256 {
+			for j := range 4 {
+				prev[j] = math.Cos(w[j] * (d0 + float64(n0) - 1))
+				cur[j] = math.Cos(w[j] * (d0 + float64(n0)))
+			}
+			for n := n0; n < min(n0+256, half); n++ {
+				p := h[half-1-n] + h[l-half+n]
+				acc[0] += p * cur[0]
+				acc[1] += p * cur[1]
+				acc[2] += p * cur[2]
+				acc[3] += p * cur[3]
+				prev[0], cur[0] = cur[0], two[0]*cur[0]-prev[0]
+				prev[1], cur[1] = cur[1], two[1]*cur[1]-prev[1]
+				prev[2], cur[2] = cur[2], two[2]*cur[2]-prev[2]
+				prev[3], cur[3] = cur[3], two[3]*cur[3]-prev[3]
+			}
+		}
+		for j := range 4 {
+			if i+j < len(fs) {
+				a[i+j] = acc[j]
+			}
+		}
+	}
 }
 
 // windowedSinc returns the M+1 taps of a Kaiser-windowed ideal low-pass

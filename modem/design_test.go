@@ -179,3 +179,32 @@ func TestKaiserShifted(t *testing.T) {
 		}
 	}
 }
+
+// TestZeroPhaseResponse checks the Chebyshev-recurrence amplitude of
+// symmetric taps against |H(f)| summed directly (FreqResponse): odd and
+// even lengths, short and long, at low, middle and high frequencies.
+func TestZeroPhaseResponse(t *testing.T) {
+	const tol = 1e-12 // relative to Σ|h| (float64 rounding of ~3000 terms)
+	for _, l := range []int{1, 2, 7, 64, 65, 130, 2805} {
+		h := KaiserWindow(l, 6)
+		var sum float64
+		for _, v := range h {
+			sum += v
+		}
+		if !symmetricTaps(h) {
+			t.Fatalf("L=%d: Kaiser window not symmetric", l)
+		}
+		fs := []float64{0, 1e-4, 0.0025, 0.1, 0.2499, 0.37, 0.5}
+		got := make([]float64, len(fs))
+		zeroPhaseResponses(got, h, fs)
+		for i, f := range fs {
+			want := cmplx.Abs(FreqResponse(h, f, 1))
+			if got := math.Abs(got[i]); math.Abs(got-want) > tol*sum {
+				t.Errorf("L=%d f=%g: |A| = %.15g, |H| = %.15g", l, f, got, want)
+			}
+		}
+	}
+	if symmetricTaps([]float64{1, 2, 1.000001}) {
+		t.Error("asymmetric taps reported symmetric")
+	}
+}

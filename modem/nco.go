@@ -1,6 +1,10 @@
 package modem
 
-import "math"
+import (
+	"math"
+	"sync"
+	"sync/atomic"
+)
 
 // oscTableLen is the number of precomputed rotations e^{j2πk·step/2⁶⁴},
 // k = 0…oscTableLen−1; the base phasor is recomputed every oscTableLen
@@ -28,7 +32,8 @@ type Oscillator struct {
 	k          int    // position in the run: the next sample is run + k·step
 	base       complex128
 	step       uint64
-	tab        []complex128 // e^{j2π·k·step/2⁶⁴}
+	tab        []complex128 // e^{j2π·k·step/2⁶⁴}: shared read-only (oscTable), or own
+	own        []complex128 // the table of a step set after construction, not shared
 }
 
 // NewOscillator returns an oscillator at freq Hz (negative for a clockwise
@@ -39,8 +44,13 @@ func NewOscillator(freq, rate float64) *Oscillator {
 	if !(rate > 0) || math.IsInf(rate, 0) {
 		panic("modem: oscillator rate must be positive")
 	}
-	o := &Oscillator{rate: rate, tab: make([]complex128, oscTableLen), base: 1}
-	o.SetFrequency(freq)
+	if math.IsNaN(freq) || math.IsInf(freq, 0) {
+		panic("modem: oscillator frequency must be finite")
+	}
+	o := &Oscillator{rate: rate, base: 1}
+	step := phaseStep(freq / rate)
+	oscTable(step)
+	o.setStep(step)
 	return o
 }
 
@@ -64,8 +74,18 @@ func (o *Oscillator) setStep(step uint64) {
 	p := o.run + uint64(o.k)*o.step
 	o.step = step
 	o.freq = float64(int64(step)) / (1 << 64) * o.rate
-	for k := range o.tab {
-		o.tab[k] = phasor(uint64(k) * step)
+	if t, ok := oscTables.Load(step); ok {
+		o.tab = t.([]complex128)
+	} else {
+		// a step of its own (a drifting oscillator retuned block after
+		// block, say): computed into its own table, allocated once
+		if o.own == nil {
+			o.own = make([]complex128, oscTableLen)
+		}
+		for k := range o.own {
+			o.own[k] = phasor(uint64(k) * step)
+		}
+		o.tab = o.own
 	}
 	o.run, o.k, o.base = p, 0, phasor(p)
 }
@@ -111,6 +131,33 @@ func (o *Oscillator) next(n int) (complex128, []complex128) {
 	t := o.tab[o.k : o.k+m]
 	o.k += m
 	return o.base, t
+}
+
+// The channels of a receiver mix at a few steps (every SSB detector of
+// one mode and rate premixes at the same one), and a table costs 1024
+// Sincos calls and 16 KB, so tables are shared read-only, up to
+// oscTablesMax of them per process.
+var (
+	oscTables      sync.Map // uint64 step → []complex128
+	oscTablesCount atomic.Int64
+)
+
+const oscTablesMax = 512
+
+// oscTable returns the table of the step, e^{j2π·k·step/2⁶⁴} for
+// k < oscTableLen, which the caller must not modify.
+func oscTable(step uint64) []complex128 {
+	if t, ok := oscTables.Load(step); ok {
+		return t.([]complex128)
+	}
+	t := make([]complex128, oscTableLen)
+	for k := range t {
+		t[k] = phasor(uint64(k) * step)
+	}
+	if oscTablesCount.Add(1) <= oscTablesMax {
+		oscTables.Store(step, t)
+	}
+	return t
 }
 
 // phaseStep converts cycles per sample to the 2⁻⁶⁴-cycle accumulator step.

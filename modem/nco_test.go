@@ -200,3 +200,27 @@ func TestOscillatorSetPhase(t *testing.T) {
 		}
 	}
 }
+
+// TestOscillatorSharedTable: oscillators of one step share a table, and
+// retuning one (SetFrequency to a step of its own) changes neither the
+// shared table nor the other's output, which stays e^{j2πfn/fs} (the
+// definition, in float64, to complex64 rounding).
+func TestOscillatorSharedTable(t *testing.T) {
+	const f, fs, tol = 1234.5, 48000, 1e-6
+	a, b := NewOscillator(f, fs), NewOscillator(f, fs)
+	if &a.tab[0] != &b.tab[0] {
+		t.Fatal("oscillators of one step do not share their table")
+	}
+	b.SetFrequency(777.7)
+	b.Generate(make([]complex64, 3000))
+	got := a.Generate(make([]complex64, 3000))
+	for n, v := range got {
+		s, c := math.Sincos(2 * math.Pi * f * float64(n) / fs)
+		if e := cmplx.Abs(complex128(v) - complex(c, s)); e > tol {
+			t.Fatalf("sample %d: %v, want %v (error %.2g)", n, v, complex(c, s), e)
+		}
+	}
+	if c := NewOscillator(f, fs); &c.tab[0] != &a.tab[0] {
+		t.Error("a new oscillator does not take the shared table")
+	}
+}
