@@ -57,3 +57,7 @@ func bankGatherAVX2(out *complex64, stride int, vb *complex64, rows, offs *int32
 func interpRealAVX2(dst *float32, x *complex64, n int, taps *float32, k, groups, u, part int, mask *[4]int32) {
 	panic("modem: no assembly kernels in this build")
 }
+
+func mixAVX2(dst, src *complex64, tab *complex128, n int, base complex128) {
+	panic("modem: no assembly kernels in this build")
+}

@@ -48,45 +48,48 @@ func NewOscillator(freq, rate float64) *Oscillator {
 		panic("modem: oscillator frequency must be finite")
 	}
 	o := &Oscillator{rate: rate, base: 1}
-	step := phaseStep(freq / rate)
-	oscTable(step)
-	o.setStep(step)
+	o.setStep(phaseStep(freq / rate))
 	return o
 }
 
 // SetFrequency changes the frequency, keeping the phase continuous: the
 // next sample continues from the current phase. It recomputes a table of
-// 1024 entries, so it is meant for occasional retuning, not per sample. It
-// panics if freq is not finite.
+// 1024 entries (unless one of the step is shared), so it is meant for
+// occasional retuning, not per sample. It panics if freq is not finite.
 func (o *Oscillator) SetFrequency(freq float64) {
 	if math.IsNaN(freq) || math.IsInf(freq, 0) {
 		panic("modem: oscillator frequency must be finite")
 	}
-	o.setStep(phaseStep(freq / o.rate))
+	step := phaseStep(freq / o.rate)
+	t, ok := oscTables.Load(step)
+	if ok {
+		o.retune(step, t.([]complex128))
+	} else {
+		// a step of its own (a drifting oscillator retuned block after
+		// block, say): computed into a table of its own, allocated once,
+		// and not shared
+		if o.own == nil {
+			o.own = make([]complex128, oscTableLen)
+		}
+		fillOscTable(o.own, step)
+		o.retune(step, o.own)
+	}
 	o.freq = freq
 }
 
 // setStep sets the accumulator step (2⁻⁶⁴ cycles per sample) directly,
-// keeping the phase continuous. An interpolator by U that carries a mixer
-// of step s in its taps premixes its input with step U·s (mod 2⁶⁴), so
-// that the phase at every output is exactly that of the mixer.
-func (o *Oscillator) setStep(step uint64) {
+// keeping the phase continuous, with the step's shared table. An
+// interpolator by U that carries a mixer of step s in its taps premixes
+// its input with step U·s (mod 2⁶⁴), so that the phase at every output
+// is exactly that of the mixer.
+func (o *Oscillator) setStep(step uint64) { o.retune(step, oscTable(step)) }
+
+// retune moves to step and its table tab, keeping the phase continuous.
+func (o *Oscillator) retune(step uint64, tab []complex128) {
 	p := o.run + uint64(o.k)*o.step
 	o.step = step
 	o.freq = float64(int64(step)) / (1 << 64) * o.rate
-	if t, ok := oscTables.Load(step); ok {
-		o.tab = t.([]complex128)
-	} else {
-		// a step of its own (a drifting oscillator retuned block after
-		// block, say): computed into its own table, allocated once
-		if o.own == nil {
-			o.own = make([]complex128, oscTableLen)
-		}
-		for k := range o.own {
-			o.own[k] = phasor(uint64(k) * step)
-		}
-		o.tab = o.own
-	}
+	o.tab = tab
 	o.run, o.k, o.base = p, 0, phasor(p)
 }
 
@@ -151,13 +154,18 @@ func oscTable(step uint64) []complex128 {
 		return t.([]complex128)
 	}
 	t := make([]complex128, oscTableLen)
-	for k := range t {
-		t[k] = phasor(uint64(k) * step)
-	}
+	fillOscTable(t, step)
 	if oscTablesCount.Add(1) <= oscTablesMax {
 		oscTables.Store(step, t)
 	}
 	return t
+}
+
+// fillOscTable writes e^{j2π·k·step/2⁶⁴} to t[k].
+func fillOscTable(t []complex128, step uint64) {
+	for k := range t {
+		t[k] = phasor(uint64(k) * step)
+	}
 }
 
 // phaseStep converts cycles per sample to the 2⁻⁶⁴-cycle accumulator step.
@@ -206,23 +214,33 @@ func (o *Oscillator) Mix(dst, src []complex64) []complex64 {
 	for len(src) > 0 {
 		b, tab := o.next(len(src))
 		n := len(tab)
-		br, bi := real(b), imag(b)
-		s := src[:n]
-		d := dst[:n]
-		for k, t := range tab {
-			tr, ti := real(t), imag(t)
-			or := float32(br*tr - bi*ti)
-			oi := float32(br*ti + bi*tr)
-			x := s[k]
-			xr, xi := real(x), imag(x)
-			// float32 arithmetic written out: Go may evaluate a complex64
-			// product through complex128.
-			d[k] = complex(xr*or-xi*oi, xr*oi+xi*or)
+		k0 := 0
+		if haveKernels && n >= 4 {
+			k0 = n &^ 3
+			mixAVX2(&dst[0], &src[0], &tab[0], k0, b)
 		}
+		mixGo(dst[k0:n], src[k0:n], tab[k0:], b)
 		src = src[n:]
 		dst = dst[n:]
 	}
 	return out
+}
+
+// mixGo is the loop of Mix: d[k] = s[k]·float32(b·tab[k]) (mixAVX2 on
+// amd64, bit for bit).
+func mixGo(d, s []complex64, tab []complex128, b complex128) {
+	br, bi := real(b), imag(b)
+	for k := range d {
+		t := tab[k]
+		tr, ti := real(t), imag(t)
+		or := float32(br*tr - bi*ti)
+		oi := float32(br*ti + bi*tr)
+		x := s[k]
+		xr, xi := real(x), imag(x)
+		// float32 arithmetic written out: Go may evaluate a complex64
+		// product through complex128.
+		d[k] = complex(xr*or-xi*oi, xr*oi+xi*or)
+	}
 }
 
 // MixReal multiplies a real signal by the oscillator,

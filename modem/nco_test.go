@@ -223,4 +223,11 @@ func TestOscillatorSharedTable(t *testing.T) {
 	if c := NewOscillator(f, fs); &c.tab[0] != &a.tab[0] {
 		t.Error("a new oscillator does not take the shared table")
 	}
+	// as the SSB detectors of a receiver's channels set their premix
+	p, q := NewOscillator(0, fs), NewOscillator(0, fs)
+	p.setStep(1 << 60)
+	q.setStep(1 << 60)
+	if &p.tab[0] != &q.tab[0] {
+		t.Error("oscillators set to one step do not share their table")
+	}
 }

@@ -1,0 +1,9 @@
+//go:build amd64 && !purego
+
+package modem
+
+// mixAVX2 is the inner loop of Oscillator.Mix for n a multiple of 4,
+// bit for bit (nco_amd64.s).
+//
+//go:noescape
+func mixAVX2(dst, src *complex64, tab *complex128, n int, base complex128)
