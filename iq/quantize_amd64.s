@@ -93,3 +93,60 @@ qdone:
 	SUBQ R8, AX
 	MOVQ AX, nonfinite+40(FP)
 	RET
+
+// func quantizeS16FastAVX2(dst *byte, src *float32, n int, scale float64) (ok bool)
+//
+// quantizeS16AVX2 without the counts, for the common case of audio
+// within full scale: y = v·scale + copysign(0.5, v·scale) in float64,
+// truncated by vcvttpd2dq. Every y with −32769 < y < 32768 truncates to
+// its code exactly as in quantizeS16Go; anything else (a sample to clamp,
+// NaN or ±Inf, which vcvttpd2dq turns into −2³¹) truncates outside
+// −32768 … 32767, which sets a flag: ok is false, dst holds garbage and
+// the caller runs quantizeS16AVX2 for the clamping and the counts.
+TEXT ·quantizeS16FastAVX2(SB), NOSPLIT, $0-33
+	MOVQ dst+0(FP), DI
+	MOVQ src+8(FP), SI
+	MOVQ n+16(FP), CX
+	VBROADCASTSD scale+24(FP), Y15
+	VBROADCASTSD quantConst<>+0(SB), Y14 // sign mask
+	VBROADCASTSD quantConst<>+8(SB), Y13 // 0.5
+	VPBROADCASTD fastConst<>+0(SB), Y12  // 32767
+	VPBROADCASTD fastConst<>+4(SB), Y11  // −32768
+	VPXOR Y10, Y10, Y10                  // out-of-range flags
+	SHRQ $3, CX
+	JZ   fdone
+
+floop:
+	VCVTPS2PD   (SI), Y0
+	VCVTPS2PD   16(SI), Y1
+	VMULPD      Y15, Y0, Y0
+	VMULPD      Y15, Y1, Y1
+	VANDPD      Y14, Y0, Y2
+	VANDPD      Y14, Y1, Y3
+	VORPD       Y13, Y2, Y2
+	VORPD       Y13, Y3, Y3
+	VADDPD      Y2, Y0, Y0
+	VADDPD      Y3, Y1, Y1
+	VCVTTPD2DQY Y0, X0
+	VCVTTPD2DQY Y1, X1
+	VINSERTI128 $1, X1, Y0, Y2
+	VPCMPGTD    Y12, Y2, Y3 // code > 32767
+	VPCMPGTD    Y2, Y11, Y4 // −32768 > code
+	VPOR        Y3, Y10, Y10
+	VPOR        Y4, Y10, Y10
+	VPACKSSDW   X1, X0, X0
+	VMOVDQU     X0, (DI)
+	ADDQ        $32, SI
+	ADDQ        $16, DI
+	DECQ        CX
+	JNZ         floop
+
+fdone:
+	VPTEST Y10, Y10
+	SETEQ  ok+32(FP)
+	VZEROUPPER
+	RET
+
+DATA fastConst<>+0(SB)/4, $32767
+DATA fastConst<>+4(SB)/4, $-32768
+GLOBL fastConst<>(SB), RODATA|NOPTR, $8

@@ -12,3 +12,7 @@ const haveQuantizeKernel = false
 func quantizeS16AVX2(dst *byte, src *float32, n int, scale float64) (clipped, nonfinite int) {
 	panic("iq: no quantize kernel in this build")
 }
+
+func quantizeS16FastAVX2(dst *byte, src *float32, n int, scale float64) (ok bool) {
+	panic("iq: no quantize kernel in this build")
+}

@@ -93,6 +93,39 @@ func TestQuantizeKernelMatchesGo(t *testing.T) {
 	}
 }
 
+// TestQuantizeFastKernel checks the kernel of in-range audio against the
+// Go loop: each case (ties, their neighbours, the rails, beyond them,
+// non-finite values) in a group of eight with seven ordinary samples at
+// every position. The kernel must report ok exactly when the Go loop
+// clamps and zeroes nothing, and then write the same bytes.
+func TestQuantizeFastKernel(t *testing.T) {
+	if !haveQuantizeKernel {
+		t.Skip("no quantize kernel in this build or on this CPU")
+	}
+	r := rand.New(rand.NewPCG(21, 22))
+	for _, scale := range []float64{32768, 32767} {
+		for _, v := range quantizeCases(scale) {
+			for pos := range 8 {
+				in := make([]float32, 16)
+				for i := range in {
+					in[i] = float32(r.Float64()*1.8 - 0.9)
+				}
+				in[8+pos] = v
+				got := make([]byte, 2*len(in))
+				want := make([]byte, 2*len(in))
+				ok := quantizeS16FastAVX2(&got[0], &in[0], len(in), scale)
+				c, nf := quantizeS16Go(want, in, scale)
+				if ok != (c == 0 && nf == 0) {
+					t.Fatalf("scale %g, %g at %d: ok = %v with %d clamped, %d non-finite", scale, v, pos, ok, c, nf)
+				}
+				if ok && string(got) != string(want) {
+					t.Fatalf("scale %g, %g at %d: kernel % x, Go % x", scale, v, pos, got, want)
+				}
+			}
+		}
+	}
+}
+
 func TestQuantizeS16Panics(t *testing.T) {
 	defer func() {
 		if recover() == nil {
