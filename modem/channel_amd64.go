@@ -61,3 +61,9 @@ func dotSym2x2AVX2(out *[2]*complex64, n int, x *complex64, step int, taps *floa
 //
 //go:noescape
 func interpRealAVX2(dst *float32, x *complex64, n int, taps *float32, k, groups, u, part int, mask *[4]int32)
+
+// dotRealSym1AVX2 is dotRealSymAVX2 for step 1 and n a multiple of 4,
+// the outputs in the lanes (see channel_amd64.s); slots = ⌈L/2⌉.
+//
+//go:noescape
+func dotRealSym1AVX2(dst *complex64, n int, x *complex64, hd *float32, slots, l int)

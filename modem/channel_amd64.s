@@ -597,15 +597,37 @@ ypair:
 	LEAQ   (SI)(DX*1), R11
 	LEAQ   (R10)(DX*1), R13
 
+	VXORPS Y2, Y2, Y2
+	VXORPS Y3, Y3, Y3
+
 yinner:
+	// even groups into Y0, Y1 and odd ones into Y2, Y3: two chains an
+	// output, so that a group need not wait for the last one's FMA
+	VMOVUPS     (R8)(AX*1), Y8
 	VMOVUPS     (R14), Y4
 	VPERMPD     $0x1B, (R10), Y5
 	VADDPS      Y5, Y4, Y4
-	VFMADD231PS (R8)(AX*1), Y4, Y0
+	VFMADD231PS Y8, Y4, Y0
 	VMOVUPS     (R11), Y6
 	VPERMPD     $0x1B, (R13), Y7
 	VADDPS      Y7, Y6, Y6
-	VFMADD231PS (R8)(AX*1), Y6, Y1
+	VFMADD231PS Y8, Y6, Y1
+	ADDQ        $32, R14
+	ADDQ        $32, R11
+	SUBQ        $32, R10
+	SUBQ        $32, R13
+	ADDQ        $32, AX
+	CMPQ        AX, BX
+	JGE         yend
+	VMOVUPS     (R8)(AX*1), Y9
+	VMOVUPS     (R14), Y10
+	VPERMPD     $0x1B, (R10), Y11
+	VADDPS      Y11, Y10, Y10
+	VFMADD231PS Y9, Y10, Y2
+	VMOVUPS     (R11), Y12
+	VPERMPD     $0x1B, (R13), Y13
+	VADDPS      Y13, Y12, Y12
+	VFMADD231PS Y9, Y12, Y3
 	ADDQ        $32, R14
 	ADDQ        $32, R11
 	SUBQ        $32, R10
@@ -613,6 +635,10 @@ yinner:
 	ADDQ        $32, AX
 	CMPQ        AX, BX
 	JLT         yinner
+
+yend:
+	VADDPS Y2, Y0, Y0
+	VADDPS Y3, Y1, Y1
 
 	// the sums of four complex lanes, (l₀ + l₂) + (l₁ + l₃), of both
 	// outputs into X4
@@ -903,5 +929,88 @@ irtsum:
 	JNZ  irtail
 
 irdone:
+	VZEROUPPER
+	RET
+
+// DOTR1(acc, t, off) adds h·(lo + hi) for four consecutive outputs at
+// byte offset off: acc += Y8·(x[lo+off] + x[hi+off]) with t as scratch.
+#define DOTR1(acc, t, off) \
+	VMOVUPS     off(R10), t; \
+	VADDPS      off(R11), t, t; \
+	VFMADD231PS Y8, t, acc
+
+// func dotRealSym1AVX2(dst *complex64, n int, x *complex64, hd *float32, slots, l int)
+//
+// dotRealSymAVX2 for step 1 with the outputs in the lanes instead of the
+// taps: outputs m … m+3 are one register, and slot k adds
+// h[k]·(x[m+k …] + x[m+L−1−k …]), both runs of four samples read forward
+// (no reversal, no sum across lanes), the tap broadcast from hd[2k].
+// Sixteen outputs a pass in four accumulators (four FMA chains), then
+// four at a time; n is a multiple of 4. slots = ⌈L/2⌉, the centre of an
+// odd length being a slot with h/2 whose two runs coincide.
+TEXT ·dotRealSym1AVX2(SB), NOSPLIT, $0-48
+	MOVQ dst+0(FP), DI
+	MOVQ n+8(FP), CX
+	MOVQ x+16(FP), SI
+	MOVQ hd+24(FP), R8
+	MOVQ slots+32(FP), BX
+	MOVQ l+40(FP), R12
+	DECQ R12
+	SHLQ $3, R12 // (L−1)·8: from the lo run of slot 0 to its hi run
+
+r16:
+	CMPQ   CX, $16
+	JLT    r4
+	VXORPS Y0, Y0, Y0
+	VXORPS Y1, Y1, Y1
+	VXORPS Y2, Y2, Y2
+	VXORPS Y3, Y3, Y3
+	MOVQ   SI, R10
+	LEAQ   (SI)(R12*1), R11
+	XORQ   AX, AX
+
+r16k:
+	VBROADCASTSS (R8)(AX*8), Y8
+	DOTR1(Y0, Y4, 0)
+	DOTR1(Y1, Y5, 32)
+	DOTR1(Y2, Y6, 64)
+	DOTR1(Y3, Y7, 96)
+	ADDQ         $8, R10
+	SUBQ         $8, R11
+	INCQ         AX
+	CMPQ         AX, BX
+	JLT          r16k
+	VMOVUPS      Y0, (DI)
+	VMOVUPS      Y1, 32(DI)
+	VMOVUPS      Y2, 64(DI)
+	VMOVUPS      Y3, 96(DI)
+	ADDQ         $128, SI
+	ADDQ         $128, DI
+	SUBQ         $16, CX
+	JMP          r16
+
+r4:
+	CMPQ   CX, $4
+	JLT    r1done
+	VXORPS Y0, Y0, Y0
+	MOVQ   SI, R10
+	LEAQ   (SI)(R12*1), R11
+	XORQ   AX, AX
+
+r4k:
+	VBROADCASTSS (R8)(AX*8), Y8
+	DOTR1(Y0, Y4, 0)
+	ADDQ         $8, R10
+	SUBQ         $8, R11
+	INCQ         AX
+	CMPQ         AX, BX
+	JLT          r4k
+	VMOVUPS      Y0, (DI)
+	ADDQ         $32, SI
+	ADDQ         $32, DI
+	SUBQ         $4, CX
+	JMP          r4
+
+r1done:
 	VZEROUPPER
 	RET

