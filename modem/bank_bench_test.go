@@ -108,7 +108,7 @@ func BenchmarkReceiverFront(b *testing.B) {
 			dst[i] = complex(lut[b[2*i]], lut[b[2*i+1]])
 		}
 	}
-	for _, nch := range []int{1, 2, 4, 6, 8, 12, 16, 32, 64, 128} {
+	for _, nch := range []int{1, 2, 4, 6, 8, 12, 14, 16, 32, 64, 128} {
 		cfgs := make([]RxConfig, nch)
 		step := 2.3e6 / float64(nch)
 		for i := range cfgs {

@@ -34,10 +34,10 @@ func (f FrontEnd) String() string {
 // ChanneliserMinChannels is the planner rule of NewReceiver: from this
 // many channels on the receiver splits the capture with a Channeliser.
 // Measured (BenchmarkReceiverFront, 2.4 MS/s, USB channels; the table in
-// DEVELOPERS.md): the two front ends cost the same CPU time at 12
-// channels; with 8 a receiver of per-channel first stages is 10–15 %
-// cheaper, with 16 the channeliser 25–30 %.
-const ChanneliserMinChannels = 12
+// DEVELOPERS.md): with 14 channels a receiver of per-channel first
+// stages still costs 10 % less CPU time than the channeliser, with 16
+// the channeliser 15–30 % less.
+const ChanneliserMinChannels = 16
 
 // bankMinBands is the fewest sub-bands worth a Channeliser: with fewer
 // the sub-band rate is near the capture rate and the channels' own

@@ -45,7 +45,7 @@ then placed from the voice over the first 10 s), then to decode them. Signals of
 test tones, whose sideband the spectrum cannot tell) are skipped with a
 warning; tune them with --offset HZ:usb or HZ:lsb.
 
-With 12 channels or more (--auto on a busy band, say) the capture is split
+With 16 channels or more (--auto on a busy band, say) the capture is split
 once by a channeliser, a polyphase filter bank, and each channel decoded
 from its nearest sub-band, at a fraction of the cost of giving every
 channel its own first stage; the audio is the same to within the

@@ -14,19 +14,20 @@ import (
 )
 
 func TestRxManyChannels(t *testing.T) {
-	// Twelve channels in one pass go through the channeliser (the
-	// planner rule: from 12 channels on) and keep the unity convention of
+	// ChanneliserMinChannels channels in one pass go through the
+	// channeliser (the planner rule) and keep the unity convention of
 	// DESIGN.md (rx): a usb tone of magnitude a at +f gives audio of
 	// amplitude a at f, ±0.1 dB (issue 5), each WAV as long as the
 	// capture.
 	const tolDB = 0.1
 	const rate = 240000.0
-	const nch = 12
+	const nch = modem.ChanneliserMinChannels
+	const spacing = 220e3 / nch
 	dir := t.TempDir()
 	x := make([]complex64, int(rate))
 	var args []string
 	for i := range nch {
-		off := -110e3 + 20e3*float64(i)
+		off := math.Round(-110e3 + spacing*float64(i))
 		y := rxTone(len(x), 0.05, off+600+100*float64(i), rate)
 		for k := range x {
 			x[k] += y[k]
@@ -43,7 +44,7 @@ func TestRxManyChannels(t *testing.T) {
 		t.Errorf("no channeliser reported for %d channels:\n%s", nch, errs)
 	}
 	for i := range nch {
-		off := -110e3 + 20e3*float64(i)
+		off := math.Round(-110e3 + spacing*float64(i))
 		a := readWAVMono(t, filepath.Join(dir, fmt.Sprintf("ch_%+d.wav", int(off))), 48000)
 		if len(a) != 48000 {
 			t.Errorf("channel %+g: %d audio samples, want 48000", off, len(a))
@@ -56,8 +57,9 @@ func TestRxManyChannels(t *testing.T) {
 }
 
 func TestRxAutoBusyBand(t *testing.T) {
-	// rx --auto on a busy band (twelve voice signals, usb and lsb, made
-	// by the modulator) decodes every one through the channeliser, each
+	// rx --auto on a busy band (as many voice signals as the planner rule
+	// needs for the channeliser, usb and lsb, made by the modulator)
+	// decodes every one through the channeliser, each
 	// tuned within 200 Hz of its carrier (issue 6).
 	const (
 		rate   = 240000.0
@@ -72,8 +74,9 @@ func TestRxAutoBusyBand(t *testing.T) {
 		x[i] = complex(float32(sd*r.NormFloat64()), float32(sd*r.NormFloat64()))
 	}
 	var truth []float64
-	for i := range 12 {
-		mode, off := "usb", -110e3+19e3*float64(i)
+	const nsig = modem.ChanneliserMinChannels
+	for i := range nsig {
+		mode, off := "usb", math.Round(-110e3+220e3/nsig*float64(i))
 		if i%2 == 1 {
 			mode = "lsb"
 		}
@@ -93,8 +96,8 @@ func TestRxAutoBusyBand(t *testing.T) {
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
-	if !strings.Contains(errs, "12 channels through one channeliser") {
-		t.Errorf("the channeliser is not reported for 12 channels:\n%s", errs)
+	if !strings.Contains(errs, fmt.Sprintf("%d channels through one channeliser", nsig)) {
+		t.Errorf("the channeliser is not reported for %d channels:\n%s", nsig, errs)
 	}
 	files, _ := filepath.Glob(filepath.Join(filepath.Dir(in), "auto_*.wav"))
 	if len(files) != len(truth) {
