@@ -561,6 +561,26 @@ fdone:
 	VZEROUPPER
 	RET
 
+// RSYMGROUP adds one group of four slots of dotRealSymAVX2's two outputs
+// to acc0 and acc1 (tap, a, b, c, d scratch), moves the pointers on and
+// compares the tap offset AX with its end BX for the caller's branch.
+#define RSYMGROUP(tap, a, b, c, d, acc0, acc1) \
+	VMOVUPS     (R8)(AX*1), tap; \
+	VMOVUPS     (R14), a; \
+	VPERMPD     $0x1B, (R10), b; \
+	VADDPS      b, a, a; \
+	VFMADD231PS tap, a, acc0; \
+	VMOVUPS     (R11), c; \
+	VPERMPD     $0x1B, (R13), d; \
+	VADDPS      d, c, c; \
+	VFMADD231PS tap, c, acc1; \
+	ADDQ        $32, R14; \
+	ADDQ        $32, R11; \
+	SUBQ        $32, R10; \
+	SUBQ        $32, R13; \
+	ADDQ        $32, AX; \
+	CMPQ        AX, BX
+
 // func dotRealSymAVX2(dst *complex64, n int, x *complex64, step int, hd *float32, groups, hi int)
 //
 // dotRealAVX2 for symmetric taps h[k] = h[L−1−k], two outputs a pass:
@@ -603,38 +623,10 @@ ypair:
 yinner:
 	// even groups into Y0, Y1 and odd ones into Y2, Y3: two chains an
 	// output, so that a group need not wait for the last one's FMA
-	VMOVUPS     (R8)(AX*1), Y8
-	VMOVUPS     (R14), Y4
-	VPERMPD     $0x1B, (R10), Y5
-	VADDPS      Y5, Y4, Y4
-	VFMADD231PS Y8, Y4, Y0
-	VMOVUPS     (R11), Y6
-	VPERMPD     $0x1B, (R13), Y7
-	VADDPS      Y7, Y6, Y6
-	VFMADD231PS Y8, Y6, Y1
-	ADDQ        $32, R14
-	ADDQ        $32, R11
-	SUBQ        $32, R10
-	SUBQ        $32, R13
-	ADDQ        $32, AX
-	CMPQ        AX, BX
-	JGE         yend
-	VMOVUPS     (R8)(AX*1), Y9
-	VMOVUPS     (R14), Y10
-	VPERMPD     $0x1B, (R10), Y11
-	VADDPS      Y11, Y10, Y10
-	VFMADD231PS Y9, Y10, Y2
-	VMOVUPS     (R11), Y12
-	VPERMPD     $0x1B, (R13), Y13
-	VADDPS      Y13, Y12, Y12
-	VFMADD231PS Y9, Y12, Y3
-	ADDQ        $32, R14
-	ADDQ        $32, R11
-	SUBQ        $32, R10
-	SUBQ        $32, R13
-	ADDQ        $32, AX
-	CMPQ        AX, BX
-	JLT         yinner
+	RSYMGROUP(Y8, Y4, Y5, Y6, Y7, Y0, Y1)
+	JGE yend
+	RSYMGROUP(Y9, Y10, Y11, Y12, Y13, Y2, Y3)
+	JLT yinner
 
 yend:
 	VADDPS Y2, Y0, Y0
