@@ -5,6 +5,7 @@ import (
 	"math"
 	"math/cmplx"
 	"os"
+	"slices"
 	"testing"
 )
 
@@ -206,5 +207,38 @@ func TestZeroPhaseResponse(t *testing.T) {
 	}
 	if symmetricTaps([]float64{1, 2, 1.000001}) {
 		t.Error("asymmetric taps reported symmetric")
+	}
+}
+
+// TestMeetSearchMatchesLinear: the doubling-and-halving search of the
+// design attenuation finds the design a step-by-step search from attenDB
+// finds (the first on the 0.25 dB grid whose edges meet the target), for
+// receive-chain and channeliser designs of 47 to 2805 taps.
+func TestMeetSearchMatchesLinear(t *testing.T) {
+	linear := func(fc, tw, atten float64) []float64 {
+		delta := math.Pow(10, -atten/20)
+		var h []float64
+		for i := range meetTries {
+			a := atten + 0.25*float64(i)
+			h = windowedSinc(KaiserOrder(tw, 1, a), fc, KaiserBeta(a), 0)
+			if edgeError(h, fc-tw/2, fc+tw/2) <= 0.95*delta {
+				break
+			}
+		}
+		return h
+	}
+	for _, c := range []struct{ fc, tw, atten float64 }{
+		{6000 / 2.4e6, (12000 - 2*3768.75) / 2.4e6, 80}, // bank prototype, M = 512
+		{20000 / 2.4e6, (40000 - 2*10800) / 2.4e6, 80},  // M = 128
+		{1350.0 / 8000, 300.0 / 8000, 80},               // channel filter
+		{4000.0 / 48000, 5300.0 / 48000, 80},            // interpolator
+		{0.25, 0.1, 60},
+		{0.05, 0.02, 100},
+	} {
+		want := linear(c.fc, c.tw, c.atten)
+		got := kaiserDesign(c.fc, c.tw, c.atten)
+		if !slices.Equal(got, want) {
+			t.Errorf("fc %g, tw %g, %g dB: %d taps, the linear search %d", c.fc, c.tw, c.atten, len(got), len(want))
+		}
 	}
 }
