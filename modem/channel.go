@@ -67,6 +67,13 @@ const combDroopDB = 0.01
 // the order of the Kaiser stages that cost the fewest multiplications per
 // input sample.
 func PlanChannel(inRate, audioRate, minWork, protect, attenDB float64) (ChannelPlan, error) {
+	return planChannel(inRate, audioRate, minWork, protect, 0, attenDB)
+}
+
+// planChannel is PlanChannel knowing the channel filter's transition
+// width trans (Hz, 0 when unknown), which weighs the work rates when a
+// rational resampler must follow.
+func planChannel(inRate, audioRate, minWork, protect, trans, attenDB float64) (ChannelPlan, error) {
 	if !(inRate > 0) || !(audioRate > 0) || !(protect > 0) || !(minWork >= 2*protect) {
 		return ChannelPlan{}, errors.New("modem: invalid channel plan request")
 	}
@@ -85,12 +92,55 @@ func PlanChannel(inRate, audioRate, minWork, protect, attenDB float64) (ChannelP
 			break
 		}
 	}
-	if d == 0 {
-		d = dmax
+	if d > 0 {
+		p, ok := planDecimation(inRate, d, protect, attenDB)
+		if !ok {
+			return ChannelPlan{}, errors.New("modem: no decimation chain found")
+		}
+		return p, nil
 	}
+	// No work rate reaches the audio rate by an integer step: a rational
+	// resampler follows whatever the decimation. The largest decimation
+	// may hold a large prime (2.5 MS/s: 438 = 6·73, one ÷73 stage of
+	// hundreds of taps), so every decimation whose work rate is within
+	// twice the least is costed in multiplications per input sample:
+	// the chain, the channel filter (KaiserOrder(trans, fw) taps at fw)
+	// and the resampler (a polyphase resampler from fw takes about
+	// KaiserOrder(fw − 2·protect, fw) taps an output), two
+	// multiplications a tap; the cheapest is taken.
+	best := math.Inf(1)
+	var p ChannelPlan
+	for c := dmax; c >= 1 && (c == dmax || inRate/float64(c) <= 2*minWork); c-- {
+		q, ok := planDecimation(inRate, c, protect, attenDB)
+		if !ok {
+			continue
+		}
+		fw := q.WorkRate
+		cost := q.Cost + 2*float64(KaiserOrder(fw-2*protect, fw, attenDB)+1)*audioRate/inRate
+		if trans > 0 {
+			cost += 2 * float64(KaiserOrder(trans, fw, attenDB)+1) * fw / inRate
+		}
+		if cost < best {
+			best, p = cost, q
+		}
+	}
+	if math.IsInf(best, 1) {
+		if inRate/float64(dmax) < 2*protect {
+			return ChannelPlan{}, fmt.Errorf("modem: capture rate %g Hz is too low for a ±%g Hz channel", inRate, protect)
+		}
+		return ChannelPlan{}, errors.New("modem: no decimation chain found")
+	}
+	return p, nil
+}
+
+// planDecimation plans the decimation by d from inRate: the first stage (a
+// comb of the cheapest order, or none) and the order of the Kaiser
+// stages that cost the fewest multiplications per input sample. ok is
+// false when no chain keeps ±protect free of aliases.
+func planDecimation(inRate float64, d int, protect, attenDB float64) (ChannelPlan, bool) {
 	p := ChannelPlan{InRate: inRate, Decim: d, WorkRate: inRate / float64(d), Protect: protect, AttenDB: attenDB}
 	if p.WorkRate < 2*protect {
-		return ChannelPlan{}, fmt.Errorf("modem: capture rate %g Hz is too low for a ±%g Hz channel", inRate, protect)
+		return p, false
 	}
 	best := math.Inf(1)
 	memo := map[[2]int]stageCost{}
@@ -119,10 +169,7 @@ func PlanChannel(inRate, audioRate, minWork, protect, attenDB float64) (ChannelP
 			break // higher orders of the same decimation cost more
 		}
 	}
-	if math.IsInf(best, 1) {
-		return ChannelPlan{}, errors.New("modem: no decimation chain found")
-	}
-	return p, nil
+	return p, !math.IsInf(best, 1)
 }
 
 // combOK reports whether the order-m comb decimating by d from rate keeps

@@ -228,7 +228,7 @@ func buildChannel(cfg RxConfig, in chainInput) (*Channel, error) {
 		edge := math.Max(math.Abs(-shift+s*(tuneLowHz-DefaultTuneRange)), math.Abs(-shift+s*(tuneHighHz+DefaultTuneRange)))
 		minWork = math.Max(minWork, 2.2*edge)
 	}
-	plan, err := PlanChannel(in.rate, cfg.AudioRate, minWork, protect, cfg.AttenDB)
+	plan, err := planChannel(in.rate, cfg.AudioRate, minWork, protect, trans, cfg.AttenDB)
 	if err != nil {
 		return nil, err
 	}

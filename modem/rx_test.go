@@ -635,7 +635,7 @@ func TestRoundTrip(t *testing.T) {
 		mode   string
 		rate   float64
 		offset float64
-	}{{"usb", 240000, 30e3}, {"lsb", 240000, -50e3}, {"usb", 250000, 20e3}} {
+	}{{"usb", 240000, 30e3}, {"lsb", 240000, -50e3}, {"usb", 250000, 20e3}, {"lsb", 2.5e6, -400e3}} {
 		m, err := NewModulator(TxConfig{Mode: tc.mode, AudioRate: fa, OutRate: tc.rate, Offset: tc.offset, BandLow: 300, BandHigh: 2700})
 		if err != nil {
 			t.Fatal(err)
@@ -796,5 +796,30 @@ func BenchmarkAGC(b *testing.B) {
 	b.SetBytes(int64(len(x)))
 	for b.Loop() {
 		a.Process(y, x)
+	}
+}
+
+// TestPlanChannelRational: at capture rates no decimation takes to a work
+// rate dividing the audio rate (2.5 MS/s and 250 kS/s with 48 kHz audio,
+// 2.5e6/48000 = 625/12), the chain is chosen by cost among work rates
+// within twice the least: no stage decimates by a large prime (the
+// largest decimation, 438 = 6·73 at 2.5 MS/s, needs one ÷73 stage), and
+// the work rate stays at or above the least allowed.
+func TestPlanChannelRational(t *testing.T) {
+	const fa, protect, trans, atten = 48000.0, 1350.0, 300.0, 80.0
+	for _, fs := range []float64{2.5e6, 250e3, 1.2e6 + 1} {
+		p, err := planChannel(fs, fa, 4*protect, protect, trans, atten)
+		if err != nil {
+			t.Fatalf("%g S/s: %v", fs, err)
+		}
+		if p.WorkRate < 4*protect || p.WorkRate > 8*protect {
+			t.Errorf("%g S/s: work rate %g Hz outside %g … %g Hz", fs, p.WorkRate, 4*protect, 8*protect)
+		}
+		for _, f := range append([]int{p.First.Decim}, p.Stages...) {
+			if f > 20 {
+				t.Errorf("%g S/s: %v has a ÷%d stage", fs, p, f)
+			}
+		}
+		t.Logf("%g S/s: %v", fs, p)
 	}
 }
