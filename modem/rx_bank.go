@@ -61,9 +61,11 @@ type bankPlan struct {
 // sub-band counts M (powers of two from bankMinBands) and decimations D
 // from M/4 to M/2 (two- to fourfold oversampling) whose sub-band rate fs/D
 // every channel's own chain reaches the audio rate from by integer
-// steps (a work rate that divides the sub-band rate and the audio rate:
-// a rational resampler there would cost more than the bank saves), it
-// takes the one with the fewest estimated operations per input sample:
+// steps (a work rate that divides the sub-band rate and the audio rate),
+// or, when no design has such a rate, among all of them with chains that
+// end in a rational resampler (as every per-channel chain at such a
+// capture rate does), it takes the one with the fewest estimated
+// operations per input sample:
 // the bank's (Channeliser.Cost) plus, per channel, its chain's
 // multiplications (ChannelPlan.Cost) at the sub-band rate. The pass band
 // is fs/(2M) plus the widest channel's half-width, so that every channel
@@ -74,14 +76,13 @@ func planBank(cfgs []RxConfig) (p bankPlan, ok bool) {
 	c0 := cfgs[0]
 	fs, fa := c0.Rate, c0.AudioRate
 	var protect float64
-	type shape struct{ protect, trans float64 }
-	shapes := map[shape]bool{}
+	shapes := map[chainShape]bool{}
 	for _, c := range cfgs {
 		if c.Rate != fs || c.AudioRate != fa || c.AttenDB != c0.AttenDB {
 			return p, false
 		}
 		_, half, trans := c.channelShape()
-		shapes[shape{half + trans/2, trans}] = true
+		shapes[chainShape{half + trans/2, trans}] = true
 		protect = max(protect, half+trans/2)
 	}
 	// Decimations D with fs/D = fw·d2 for a work rate fw = fa/u: D
@@ -94,41 +95,68 @@ func planBank(cfgs []RxConfig) (p bankPlan, ok bool) {
 		}
 	}
 	best := math.Inf(1)
-	for m := bankMinBands; m <= maxRxBankBands; m *= 2 {
-		pass := fs/float64(2*m) + protect
-		for d := m / 2; d >= m/4; d-- {
-			divides := false
-			for _, q := range qs {
-				divides = divides || q%d == 0
-			}
-			r := fs / float64(d)
-			if !divides || !(r > 2*pass) {
-				continue
-			}
-			chains, fits := 0.0, true
-			for sh := range shapes {
-				ops, ok := chainOps(r, fa, sh.protect, sh.trans, c0.AttenDB)
-				if !ok {
-					fits = false
-					break
-				}
-				chains = max(chains, ops)
-			}
-			if !fits {
-				continue
-			}
-			b, err := NewChanneliserPlan(ChanneliserSpec{Rate: fs, Bands: m, Decim: d, Pass: pass, AttenDB: c0.AttenDB})
-			if err != nil {
-				continue
-			}
-			cost := b + float64(len(cfgs))*chains/fs
-			if cost < best {
-				best = cost
-				p = bankPlan{m: m, d: d, pass: pass, cost: cost}
+	// First the designs whose chains reach the audio rate by integer
+	// steps; when there are none (2.5 MS/s with 48 kHz audio: 625/12),
+	// any decimation, the chains ending in a rational resampler as the
+	// per-channel ones then do: first those whose resampler has at most
+	// cheapPhases phases, then any.
+	for _, phases := range []int{0, cheapPhases, maxRatioTerm} {
+		if phases > 0 && !math.IsInf(best, 1) {
+			break
+		}
+		for m := bankMinBands; m <= maxRxBankBands; m *= 2 {
+			if p2, c, ok := planBankBands(cfgs, m, qs, shapes, protect, phases); ok && c < best {
+				best, p = c, p2
 			}
 		}
 	}
 	return p, !math.IsInf(best, 1)
+}
+
+type chainShape struct{ protect, trans float64 }
+
+// planBankBands is planBank's choice of decimation D for M sub-bands:
+// among D from M/2 down to M/4 whose sub-band rate divides fs·u/fa for a
+// q = fs·u/fa of qs (or any D when phases > 0: chains ending in a
+// rational resampler of at most that many phases), the one of the fewest
+// estimated operations per input sample, and that count.
+func planBankBands(cfgs []RxConfig, m int, qs []int, shapes map[chainShape]bool, protect float64, phases int) (p bankPlan, cost float64, ok bool) {
+	c0 := cfgs[0]
+	fs, fa := c0.Rate, c0.AudioRate
+	best := math.Inf(1)
+	pass := fs/float64(2*m) + protect
+	for d := m / 2; d >= m/4; d-- {
+		divides := phases > 0
+		for _, q := range qs {
+			divides = divides || q%d == 0
+		}
+		r := fs / float64(d)
+		if !divides || !(r > 2*pass) {
+			continue
+		}
+		chains, fits := 0.0, true
+		for sh := range shapes {
+			ops, ok := chainOps(r, fa, sh.protect, sh.trans, c0.AttenDB, phases)
+			if !ok {
+				fits = false
+				break
+			}
+			chains = max(chains, ops)
+		}
+		if !fits {
+			continue
+		}
+		b, err := NewChanneliserPlan(ChanneliserSpec{Rate: fs, Bands: m, Decim: d, Pass: pass, AttenDB: c0.AttenDB})
+		if err != nil {
+			continue
+		}
+		cost := b + float64(len(cfgs))*chains/fs
+		if cost < best {
+			best = cost
+			p = bankPlan{m: m, d: d, pass: pass, cost: cost}
+		}
+	}
+	return p, best, !math.IsInf(best, 1)
 }
 
 // chainOps estimates the floating-point operations per second of a
@@ -136,19 +164,27 @@ func planBank(cfgs []RxConfig) (p bankPlan, ok bool) {
 // reading a sub-band at rate r:
 // the decimators (ChannelPlan.Cost), the channel filter at the work rate
 // and the interpolator to the audio rate with the detector (complex taps,
-// real output), two operations a multiply-add. ok is false when the work
-// rate does not reach the audio rate by an integer step.
-func chainOps(r, fa, protect, trans, attenDB float64) (ops float64, ok bool) {
-	cp, err := PlanChannel(r, fa, 4*protect, protect, attenDB)
+// real output) or the rational resampler, two operations a multiply-add.
+// ok is false when the work rate does not reach the audio rate by an
+// integer step nor, with phases > 0, by a resampler of at most phases
+// phases.
+func chainOps(r, fa, protect, trans, attenDB float64, phases int) (ops float64, ok bool) {
+	cp, err := planChannel(r, fa, 4*protect, protect, trans, attenDB)
 	if err != nil {
 		return 0, false
 	}
 	fw := cp.WorkRate
+	filt := float64(KaiserOrder(trans, fw, attenDB) + 1)
 	up := fa / fw
 	if math.Abs(up-math.Round(up)) > 1e-9 {
-		return 0, false
+		if l, _, err := rateRatio(fw, fa); err != nil || l > phases {
+			return 0, false
+		}
+		// a polyphase resampler from fw: about KaiserOrder(fw − 2·protect,
+		// fw) taps an audio sample, complex data
+		rs := float64(KaiserOrder(fw-2*protect, fw, attenDB) + 1)
+		return 2*cp.Cost*r + 2*filt*fw + 2*rs*fa, true
 	}
-	filt := float64(KaiserOrder(trans, fw, attenDB) + 1)
 	interp := float64(KaiserOrder(fw-2*protect, fa, attenDB)+1) / math.Round(up)
 	return 2*cp.Cost*r + 2*filt*fw + 4*interp*fa, true
 }

@@ -804,7 +804,8 @@ func BenchmarkAGC(b *testing.B) {
 // 2.5e6/48000 = 625/12), the chain is chosen by cost among work rates
 // within twice the least: no stage decimates by a large prime (the
 // largest decimation, 438 = 6·73 at 2.5 MS/s, needs one ÷73 stage), and
-// the work rate stays at or above the least allowed.
+// the work rate stays at or above the least allowed, and the resampler
+// has at most cheapPhases phases where one can.
 func TestPlanChannelRational(t *testing.T) {
 	const fa, protect, trans, atten = 48000.0, 1350.0, 300.0, 80.0
 	for _, fs := range []float64{2.5e6, 250e3, 1.2e6 + 1} {
@@ -820,6 +821,13 @@ func TestPlanChannelRational(t *testing.T) {
 				t.Errorf("%g S/s: %v has a ÷%d stage", fs, p, f)
 			}
 		}
-		t.Logf("%g S/s: %v", fs, p)
+		// the resampler to 48 kHz: few phases where a work rate allows
+		// them (2.5 MS/s ÷ 400 = 6250 Hz, 192/25, among others; none
+		// for the odd rate)
+		l, _, err := rateRatio(p.WorkRate, fa)
+		if fs != 1.2e6+1 && (err != nil || l > cheapPhases) {
+			t.Errorf("%g S/s: resampler of %d phases (%v), want ≤ %d", fs, l, err, cheapPhases)
+		}
+		t.Logf("%g S/s: %v, resampler of %d phases", fs, p, l)
 	}
 }
