@@ -65,3 +65,7 @@ func mixAVX2(dst, src *complex64, tab *complex128, n int, base complex128) {
 func dotRealSym1AVX2(dst *complex64, n int, x *complex64, hd *float32, slots, l int) {
 	panic("modem: no assembly kernels in this build")
 }
+
+func resampRationalAVX2(dst, buf *complex64, c int, phd *float32, k, up, down int, state *[2]int) (n int) {
+	panic("modem: no assembly kernels in this build")
+}

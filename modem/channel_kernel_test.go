@@ -461,3 +461,51 @@ func TestMixKernelMatchesGo(t *testing.T) {
 		}
 	}
 }
+
+// TestRationalKernelMatchesGo runs a rational polyphase stage with the
+// vector kernel and with its Go loop, bit for bit (the kernel sums in the
+// loop's order, without fused multiply-adds), up- and downsampling, in
+// chunks of several sizes so that the position carries over.
+func TestRationalKernelMatchesGo(t *testing.T) {
+	if !haveKernels {
+		t.Skip("no assembly kernels on this machine or build")
+	}
+	rng := rand.New(rand.NewPCG(17, 18))
+	for _, tc := range []struct{ up, down, k int }{{216, 25, 12}, {744, 125, 8}, {3, 2, 16}, {2, 3, 4}, {7, 10, 20}} {
+		h := make([]float64, tc.up*tc.k-tc.up/2)
+		for i := range h {
+			h[i] = rng.NormFloat64()
+		}
+		ph, k := polyphase(h, tc.up)
+		if k != tc.k {
+			t.Fatalf("%+v: k = %d", tc, k)
+		}
+		x := make([]complex64, 3000)
+		for i := range x {
+			x[i] = complex(float32(rng.NormFloat64()), float32(rng.NormFloat64()))
+		}
+		run := func(phd []float32, chunk int) []complex64 {
+			var s cstage
+			s.init(polyState{up: tc.up, down: tc.down, k: k, ph: ph, phd: phd}, chunk)
+			var out []complex64
+			for i := 0; i < len(x); i += chunk {
+				src := x[i:min(i+chunk, len(x))]
+				dst := make([]complex64, 0, s.maxOut(len(src)))
+				out = append(out, s.process(dst, src)...)
+			}
+			return out
+		}
+		want := run(nil, 3000)
+		for _, chunk := range []int{1, 7, 256, 3000} {
+			got := run(dupTaps(ph), chunk)
+			if len(got) != len(want) {
+				t.Fatalf("%+v, chunks of %d: %d outputs, want %d", tc, chunk, len(got), len(want))
+			}
+			for i := range want {
+				if got[i] != want[i] {
+					t.Fatalf("%+v, chunks of %d: output %d: kernel %v, Go %v", tc, chunk, i, got[i], want[i])
+				}
+			}
+		}
+	}
+}

@@ -42,6 +42,7 @@ type stagePlan struct {
 	inRate, outRate float64
 	taps            []float64
 	ph              []float32 // polyphase table of taps (polyphase), k taps a phase
+	phd             []float32 // ph with every tap twice (dupTaps), for the rational kernel
 	k               int
 }
 
@@ -243,17 +244,28 @@ func polyphase(h []float64, up int) (ph []float32, k int) {
 	return ph, k
 }
 
+// dupTaps returns ph with every tap twice, h₀ h₀ h₁ h₁ …: the layout in
+// which one vector multiply applies four taps to four complex samples.
+func dupTaps(ph []float32) []float32 {
+	d := make([]float32, 2*len(ph))
+	for i, v := range ph {
+		d[2*i], d[2*i+1] = v, v
+	}
+	return d
+}
+
 // polyState is the position of a polyphase stage: the next output uses
 // input index j (relative to the next chunk; the k−1 inputs before it are
 // in the history) and phase p.
 type polyState struct {
 	up, down, k int
 	ph          []float32
+	phd         []float32 // ph duplicated (dupTaps), or nil
 	p, j        int
 }
 
 func newPolyState(s stagePlan) polyState {
-	return polyState{up: s.up, down: s.down, k: s.k, ph: s.ph}
+	return polyState{up: s.up, down: s.down, k: s.k, ph: s.ph, phd: s.phd}
 }
 
 // maxOut bounds the outputs for n inputs: ⌈n·up/down⌉ + 1.
@@ -293,6 +305,12 @@ func (s *cstage) process(dst, src []complex64) []complex64 {
 	up, down := s.up, s.down
 	if need := ((c-j)*up - p + down - 1) / down; j < c && n+need > len(d) {
 		panic("modem: resampler dst too short")
+	}
+	if s.phd != nil && j < c {
+		// a rational stage: one output a position, in the vector kernel
+		st := [2]int{j, p}
+		n += resampRationalAVX2(&d[n], &buf[0], c, &s.phd[0], k, up, down, &st)
+		j, p = st[0], st[1]
 	}
 	for j < c {
 		w := buf[j : j+k]
@@ -466,6 +484,9 @@ func plan(spec *ResamplerSpec) ([]stagePlan, int, int, error) {
 	}
 	for i := range plans {
 		plans[i].ph, plans[i].k = polyphase(plans[i].taps, plans[i].up)
+		if haveKernels && plans[i].down > 1 {
+			plans[i].phd = dupTaps(plans[i].ph)
+		}
 	}
 	if planCached.Add(1) <= planCacheMax {
 		planCache.Store(key, &plannedSpec{spec: *spec, plans: plans, l: l, m: m})
