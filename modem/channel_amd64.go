@@ -67,3 +67,10 @@ func interpRealAVX2(dst *float32, x *complex64, n int, taps *float32, k, groups,
 //
 //go:noescape
 func dotRealSym1AVX2(dst *complex64, n int, x *complex64, hd *float32, slots, l int)
+
+// dotReal1AVX2 is dotRealAVX2 for step 1 and n a multiple of 4, the
+// outputs in the lanes (see channel_amd64.s); hd is the duplicated layout
+// of kernelTaps.re, l the number of taps.
+//
+//go:noescape
+func dotReal1AVX2(dst *complex64, n int, x *complex64, hd *float32, l int)

@@ -1006,3 +1006,76 @@ r4k:
 r1done:
 	VZEROUPPER
 	RET
+
+// DOTL1(acc, t, off) adds h·x for four consecutive outputs: acc +=
+// Y8·x[R10 + off …] (t scratch).
+#define DOTL1(acc, t, off) \
+	VMOVUPS     off(R10), t; \
+	VFMADD231PS Y8, t, acc
+
+// func dotReal1AVX2(dst *complex64, n int, x *complex64, hd *float32, l int)
+//
+// dotRealAVX2 for step 1 with the outputs in the vector lanes (as
+// dotRealSym1AVX2, for taps with no symmetry: a channel filter carrying a
+// fractional delay): outputs m … m+3 are one register, and tap k adds
+// h[k]·x[m+k …], the tap broadcast from hd[2k]. Sixteen outputs a pass in
+// four accumulators, then four at a time; n is a multiple of 4.
+TEXT ·dotReal1AVX2(SB), NOSPLIT, $0-40
+	MOVQ dst+0(FP), DI
+	MOVQ n+8(FP), CX
+	MOVQ x+16(FP), SI
+	MOVQ hd+24(FP), R8
+	MOVQ l+32(FP), BX
+
+l16:
+	CMPQ   CX, $16
+	JLT    l4
+	VXORPS Y0, Y0, Y0
+	VXORPS Y1, Y1, Y1
+	VXORPS Y2, Y2, Y2
+	VXORPS Y3, Y3, Y3
+	MOVQ   SI, R10
+	XORQ   AX, AX
+
+l16k:
+	VBROADCASTSS (R8)(AX*8), Y8
+	DOTL1(Y0, Y4, 0)
+	DOTL1(Y1, Y5, 32)
+	DOTL1(Y2, Y6, 64)
+	DOTL1(Y3, Y7, 96)
+	ADDQ         $8, R10
+	INCQ         AX
+	CMPQ         AX, BX
+	JLT          l16k
+	VMOVUPS      Y0, (DI)
+	VMOVUPS      Y1, 32(DI)
+	VMOVUPS      Y2, 64(DI)
+	VMOVUPS      Y3, 96(DI)
+	ADDQ         $128, SI
+	ADDQ         $128, DI
+	SUBQ         $16, CX
+	JMP          l16
+
+l4:
+	CMPQ   CX, $4
+	JLT    l1done
+	VXORPS Y0, Y0, Y0
+	MOVQ   SI, R10
+	XORQ   AX, AX
+
+l4k:
+	VBROADCASTSS (R8)(AX*8), Y8
+	DOTL1(Y0, Y4, 0)
+	ADDQ         $8, R10
+	INCQ         AX
+	CMPQ         AX, BX
+	JLT          l4k
+	VMOVUPS      Y0, (DI)
+	ADDQ         $32, SI
+	ADDQ         $32, DI
+	SUBQ         $4, CX
+	JMP          l4
+
+l1done:
+	VZEROUPPER
+	RET

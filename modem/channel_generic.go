@@ -69,3 +69,7 @@ func dotRealSym1AVX2(dst *complex64, n int, x *complex64, hd *float32, slots, l 
 func resampRationalAVX2(dst, buf *complex64, c int, phd *float32, k, up, down int, state *[2]int) (n int) {
 	panic("modem: no assembly kernels in this build")
 }
+
+func dotReal1AVX2(dst *complex64, n int, x *complex64, hd *float32, l int) {
+	panic("modem: no assembly kernels in this build")
+}

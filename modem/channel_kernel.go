@@ -126,6 +126,12 @@ func (t *kernelTaps) dotRotate(dst, x []complex64, step int, p, r complex128) {
 // by the assembly kernel. It panics if x is too short.
 func (t *kernelTaps) dotReal(dst, x []complex64, step int) {
 	checkWindow(dst, x, step, t.n)
+	if step == 1 && len(dst) >= 4 {
+		// a filter that does not decimate: outputs in the lanes
+		n := len(dst) &^ 3
+		dotReal1AVX2(&dst[0], n, &x[0], &t.re[0], t.n)
+		dst, x = dst[n:], x[n:]
+	}
 	if len(dst) == 0 {
 		return
 	}

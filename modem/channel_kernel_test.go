@@ -38,7 +38,7 @@ func TestKernelsMatchGo(t *testing.T) {
 	r := rand.New(rand.NewPCG(5, 6))
 	for _, l := range []int{1, 2, 3, 4, 5, 7, 8, 9, 13, 16, 31, 53, 75, 128} {
 		for _, step := range []int{1, 5, 16} {
-			for _, cnt := range []int{1, 2, 7, 64} {
+			for _, cnt := range []int{1, 2, 7, 23, 37, 64} {
 				name := fmt.Sprintf("L%d_step%d_n%d", l, step, cnt)
 				cr := make([]float32, l)
 				ci := make([]float32, l)
