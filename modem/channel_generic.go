@@ -73,3 +73,7 @@ func resampRationalAVX2(dst, buf *complex64, c int, phd *float32, k, up, down in
 func dotReal1AVX2(dst *complex64, n int, x *complex64, hd *float32, l int) {
 	panic("modem: no assembly kernels in this build")
 }
+
+func mixRealAVX2(dst *float32, src *complex64, tab *complex128, n int, base complex128) {
+	panic("modem: no assembly kernels in this build")
+}

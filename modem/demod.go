@@ -39,19 +39,29 @@ func (d *SSBDemod) Process(dst []float32, src []complex64) []float32 {
 	for len(src) > 0 {
 		b, tab := d.osc.next(len(src))
 		n := len(tab)
-		br, bi := real(b), imag(b)
-		s := src[:n]
-		o := dst[:n]
-		for k, t := range tab {
-			tr, ti := real(t), imag(t)
-			or := float32(br*tr - bi*ti)
-			oi := float32(br*ti + bi*tr)
-			x := s[k]
-			o[k] = real(x)*or - imag(x)*oi
+		k0 := 0
+		if haveKernels && n >= 8 {
+			k0 = n &^ 7
+			mixRealAVX2(&dst[0], &src[0], &tab[0], k0, b)
 		}
+		mixRealGo(dst[k0:n], src[k0:n], tab[k0:], b)
 		src, dst = src[n:], dst[n:]
 	}
 	return out
+}
+
+// mixRealGo is the loop of SSBDemod.Process: o[k] = Re(s[k]·float32(b·tab[k]))
+// (mixRealAVX2 on amd64, bit for bit).
+func mixRealGo(o []float32, s []complex64, tab []complex128, b complex128) {
+	br, bi := real(b), imag(b)
+	for k := range o {
+		t := tab[k]
+		tr, ti := real(t), imag(t)
+		or := float32(br*tr - bi*ti)
+		oi := float32(br*ti + bi*tr)
+		x := s[k]
+		o[k] = real(x)*or - imag(x)*oi
+	}
 }
 
 // dcBlockHz is the corner of the DC blocker after AM detection (common
