@@ -931,6 +931,32 @@ irdone:
 	VADDPS      off(R11), t, t; \
 	VFMADD231PS Y8, t, acc
 
+// R16STEP is one slot k of dotRealSym1AVX2's sixteen outputs: output
+// group i (outputs m+4i … m+4i+3, accumulator Y0+i) adds h[k]·(lo_i +
+// hi_i), lo_i = x[m+4i+k …], hi_i = x[m+4i+L−1−k …]. Slot k+4 reuses
+// the runs: its lo_i is this lo_{i+1} and its hi_i this hi_{i−1}, so a
+// step loads only the new lo_3 (into nlo, this step's lo_0) and hi_0
+// (into nhi, this step's hi_3); the caller rotates the register names.
+// AX is k, BX the number of slots (done jumps out when k+4 reaches it),
+// R10 and R11 the lo and hi runs of output m, Y8 and Y13 scratch.
+#define R16STEP(l0, l1, l2, l3, h0, h1, h2, h3, nlo, nhi, done) \
+	VBROADCASTSS (R8)(AX*8), Y8; \
+	VADDPS       h0, l0, Y13; \
+	VFMADD231PS  Y8, Y13, Y0; \
+	VADDPS       h1, l1, Y13; \
+	VFMADD231PS  Y8, Y13, Y1; \
+	VADDPS       h2, l2, Y13; \
+	VFMADD231PS  Y8, Y13, Y2; \
+	VADDPS       h3, l3, Y13; \
+	VFMADD231PS  Y8, Y13, Y3; \
+	ADDQ         $4, AX; \
+	CMPQ         AX, BX; \
+	JGE          done; \
+	ADDQ         $32, R10; \
+	SUBQ         $32, R11; \
+	VMOVUPS      96(R10), nlo; \
+	VMOVUPS      (R11), nhi
+
 // func dotRealSym1AVX2(dst *complex64, n int, x *complex64, hd *float32, slots, l int)
 //
 // dotRealSymAVX2 for step 1 with the outputs in the lanes instead of the
@@ -957,29 +983,46 @@ r16:
 	VXORPS Y1, Y1, Y1
 	VXORPS Y2, Y2, Y2
 	VXORPS Y3, Y3, Y3
-	MOVQ   SI, R10
-	LEAQ   (SI)(R12*1), R11
-	XORQ   AX, AX
+	XORQ   R9, R9 // residue r: slots r, r+4, r+8, …
+
+r16res:
+	MOVQ    R9, AX
+	CMPQ    AX, BX
+	JGE     r16next
+	LEAQ    (SI)(AX*8), R10 // lo run of slot k for output m
+	MOVQ    SI, R11
+	ADDQ    R12, R11
+	MOVQ    AX, R13
+	SHLQ    $3, R13
+	SUBQ    R13, R11        // hi run of slot k for output m
+	VMOVUPS (R10), Y4
+	VMOVUPS 32(R10), Y5
+	VMOVUPS 64(R10), Y6
+	VMOVUPS 96(R10), Y7
+	VMOVUPS (R11), Y9
+	VMOVUPS 32(R11), Y10
+	VMOVUPS 64(R11), Y11
+	VMOVUPS 96(R11), Y12
 
 r16k:
-	VBROADCASTSS (R8)(AX*8), Y8
-	DOTR1(Y0, Y4, 0)
-	DOTR1(Y1, Y5, 32)
-	DOTR1(Y2, Y6, 64)
-	DOTR1(Y3, Y7, 96)
-	ADDQ         $8, R10
-	SUBQ         $8, R11
-	INCQ         AX
-	CMPQ         AX, BX
-	JLT          r16k
-	VMOVUPS      Y0, (DI)
-	VMOVUPS      Y1, 32(DI)
-	VMOVUPS      Y2, 64(DI)
-	VMOVUPS      Y3, 96(DI)
-	ADDQ         $128, SI
-	ADDQ         $128, DI
-	SUBQ         $16, CX
-	JMP          r16
+	R16STEP(Y4, Y5, Y6, Y7, Y9, Y10, Y11, Y12, Y4, Y12, r16next)
+	R16STEP(Y5, Y6, Y7, Y4, Y12, Y9, Y10, Y11, Y5, Y11, r16next)
+	R16STEP(Y6, Y7, Y4, Y5, Y11, Y12, Y9, Y10, Y6, Y10, r16next)
+	R16STEP(Y7, Y4, Y5, Y6, Y10, Y11, Y12, Y9, Y7, Y9, r16next)
+	JMP     r16k
+
+r16next:
+	INCQ    R9
+	CMPQ    R9, $4
+	JLT     r16res
+	VMOVUPS Y0, (DI)
+	VMOVUPS Y1, 32(DI)
+	VMOVUPS Y2, 64(DI)
+	VMOVUPS Y3, 96(DI)
+	ADDQ    $128, SI
+	ADDQ    $128, DI
+	SUBQ    $16, CX
+	JMP     r16
 
 r4:
 	CMPQ   CX, $4
