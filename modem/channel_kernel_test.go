@@ -429,6 +429,19 @@ func TestRealSymKernelMatchesGo(t *testing.T) {
 	}
 }
 
+// mixCase returns n Gaussian complex samples and n unit phasors spread
+// over the circle, for the mixing kernels' tests.
+func mixCase(rng *rand.Rand, n int) ([]complex64, []complex128) {
+	src := make([]complex64, n)
+	tab := make([]complex128, n)
+	for k := range src {
+		src[k] = complex(float32(rng.NormFloat64()), float32(rng.NormFloat64()))
+		s, c := math.Sincos(2 * math.Pi * rng.Float64())
+		tab[k] = complex(c, s)
+	}
+	return src, tab
+}
+
 // TestMixKernelMatchesGo compares mixAVX2 with mixGo, its Go twin, bit for
 // bit (both round the same products in the same order), for lengths
 // around the kernel's four-sample step, in place and not, at phasors
@@ -439,13 +452,7 @@ func TestMixKernelMatchesGo(t *testing.T) {
 	}
 	rng := rand.New(rand.NewPCG(7, 8))
 	for _, n := range []int{4, 8, 12, 100, 1024} {
-		src := make([]complex64, n)
-		tab := make([]complex128, n)
-		for k := range src {
-			src[k] = complex(float32(rng.NormFloat64()), float32(rng.NormFloat64()))
-			s, c := math.Sincos(2 * math.Pi * rng.Float64())
-			tab[k] = complex(c, s)
-		}
+		src, tab := mixCase(rng, n)
 		s, c := math.Sincos(2.5)
 		b := complex(c, s)
 		want := make([]complex64, n)
@@ -519,13 +526,7 @@ func TestMixRealKernelMatchesGo(t *testing.T) {
 	}
 	rng := rand.New(rand.NewPCG(9, 10))
 	for _, n := range []int{8, 16, 24, 1024} {
-		src := make([]complex64, n)
-		tab := make([]complex128, n)
-		for k := range src {
-			src[k] = complex(float32(rng.NormFloat64()), float32(rng.NormFloat64()))
-			s, c := math.Sincos(2 * math.Pi * rng.Float64())
-			tab[k] = complex(c, s)
-		}
+		src, tab := mixCase(rng, n)
 		s, c := math.Sincos(-1.1)
 		b := complex(c, s)
 		want := make([]float32, n)

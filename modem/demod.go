@@ -53,12 +53,8 @@ func (d *SSBDemod) Process(dst []float32, src []complex64) []float32 {
 // mixRealGo is the loop of SSBDemod.Process: o[k] = Re(s[k]·float32(b·tab[k]))
 // (mixRealAVX2 on amd64, bit for bit).
 func mixRealGo(o []float32, s []complex64, tab []complex128, b complex128) {
-	br, bi := real(b), imag(b)
 	for k := range o {
-		t := tab[k]
-		tr, ti := real(t), imag(t)
-		or := float32(br*tr - bi*ti)
-		oi := float32(br*ti + bi*tr)
+		or, oi := phasor32(b, tab[k])
 		x := s[k]
 		o[k] = real(x)*or - imag(x)*oi
 	}

@@ -229,18 +229,22 @@ func (o *Oscillator) Mix(dst, src []complex64) []complex64 {
 // mixGo is the loop of Mix: d[k] = s[k]·float32(b·tab[k]) (mixAVX2 on
 // amd64, bit for bit).
 func mixGo(d, s []complex64, tab []complex128, b complex128) {
-	br, bi := real(b), imag(b)
 	for k := range d {
-		t := tab[k]
-		tr, ti := real(t), imag(t)
-		or := float32(br*tr - bi*ti)
-		oi := float32(br*ti + bi*tr)
+		or, oi := phasor32(b, tab[k])
 		x := s[k]
 		xr, xi := real(x), imag(x)
 		// float32 arithmetic written out: Go may evaluate a complex64
 		// product through complex128.
 		d[k] = complex(xr*or-xi*oi, xr*oi+xi*or)
 	}
+}
+
+// phasor32 returns float32(b·t) as its real and imaginary parts: the
+// complex128 product written out (two products, then one add or
+// subtract), as the kernels of nco_amd64.s round it.
+func phasor32(b, t complex128) (re, im float32) {
+	br, bi, tr, ti := real(b), imag(b), real(t), imag(t)
+	return float32(br*tr - bi*ti), float32(br*ti + bi*tr)
 }
 
 // MixReal multiplies a real signal by the oscillator,
