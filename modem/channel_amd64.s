@@ -1015,13 +1015,7 @@ r16next:
 	INCQ    R9
 	CMPQ    R9, $4
 	JLT     r16res
-	VMOVUPS Y0, (DI)
-	VMOVUPS Y1, 32(DI)
-	VMOVUPS Y2, 64(DI)
-	VMOVUPS Y3, 96(DI)
-	ADDQ    $128, SI
-	ADDQ    $128, DI
-	SUBQ    $16, CX
+	LANES16DONE
 	JMP     r16
 
 r4:
@@ -1090,13 +1084,7 @@ l16k:
 	INCQ         AX
 	CMPQ         AX, BX
 	JLT          l16k
-	VMOVUPS      Y0, (DI)
-	VMOVUPS      Y1, 32(DI)
-	VMOVUPS      Y2, 64(DI)
-	VMOVUPS      Y3, 96(DI)
-	ADDQ         $128, SI
-	ADDQ         $128, DI
-	SUBQ         $16, CX
+	LANES16DONE
 	JMP          l16
 
 l4:

@@ -11,3 +11,15 @@
 	VXORPS Y5, Y5, Y5; \
 	VXORPS Y6, Y6, Y6; \
 	VXORPS Y7, Y7, Y7
+
+// LANES16DONE stores the sixteen outputs of a lanes kernel's pass
+// (Y0…Y3, four complex outputs each) at DI and moves DI and the input SI
+// on by sixteen samples, CX down by sixteen outputs.
+#define LANES16DONE \
+	VMOVUPS Y0, (DI); \
+	VMOVUPS Y1, 32(DI); \
+	VMOVUPS Y2, 64(DI); \
+	VMOVUPS Y3, 96(DI); \
+	ADDQ    $128, SI; \
+	ADDQ    $128, DI; \
+	SUBQ    $16, CX
