@@ -158,6 +158,21 @@ func (a *AGC) peak(v float64) float64 {
 	return math.Float64frombits(max(a.suf[a.pos+1], a.pre))
 }
 
+// peakAt pushes b, the bits of a value ≥ 0, at block position pos and
+// returns the bits of the largest of the last len(vals) values (of those
+// seen, at the start), with pre, the running maximum of the current
+// block, updated: AGC.peak with the position and running maximum in the
+// caller's locals (workAGC.measure), small enough to be inlined.
+func peakAt(vals, suf []uint64, pos int, pre, b uint64) (peak, newPre uint64) {
+	vals[pos] = b
+	if pos == 0 {
+		pre = b
+	} else {
+		pre = max(pre, b)
+	}
+	return max(suf[pos+1], pre), pre
+}
+
 // endBlock computes the suffix maxima of the block just completed, which
 // serve the next one.
 func (a *AGC) endBlock() {
@@ -201,4 +216,106 @@ func (a *AGC) Process(dst, src []float32) []float32 {
 	}
 	a.env, a.hangC = env, hangC
 	return dst
+}
+
+// workAGC is the AGC of an SSB channel whose detector interpolates by up
+// from the work rate (ssbDetector): the envelope runs at the work rate on
+// |z|, the magnitude of the channel's complex baseband after the channel
+// filter — the analytic envelope of the audio the detector makes from it,
+// so |audio| ≤ |z| and the target peak holds — and the audio, delayed by
+// the look-ahead in an audio-rate delay line, is multiplied by the gain
+// of its work sample, interpolated linearly between work samples. The
+// envelope's recursion and sliding maximum, the AGC's cost, run on a
+// sixth or an eighth of the samples. The look-ahead is the AGC's, five
+// attack time constants (len(line) = up·a.Delay()); the audio lags the
+// work-rate samples by the detector's own delay besides, which only adds
+// to it.
+type workAGC struct {
+	a     *AGC      // the envelope at the work rate (its delay line unused)
+	up    int       // audio samples a work sample
+	line  []float32 // the audio's delay line
+	pos   int
+	g     float32   // the gain of the last work sample
+	gains []float32 // scratch: the gains of a block's work samples
+}
+
+// newWorkAGC returns the AGC of timing t for a channel of work rate fw
+// whose detector interpolates by up.
+func newWorkAGC(t AGCTiming, fw float64, up int) *workAGC {
+	a := NewAGC(t, fw)
+	w := &workAGC{a: a, up: up, line: make([]float32, up*a.Delay())}
+	w.Reset()
+	return w
+}
+
+// Delay returns the look-ahead in audio samples.
+func (w *workAGC) Delay() int { return len(w.line) }
+
+// Reset clears the envelope and the delay line.
+func (w *workAGC) Reset() {
+	w.a.Reset()
+	clear(w.line)
+	w.pos = 0
+	w.g = float32(agcTargetPeak / w.a.env)
+}
+
+// measure runs the envelope over the work-rate samples z, keeping the
+// gain of each for apply.
+func (w *workAGC) measure(z []complex64) {
+	if cap(w.gains) < len(z) {
+		w.gains = make([]float32, len(z))
+	}
+	g := w.gains[:len(z)]
+	a := w.a
+	env, hangC := a.env, a.hangC
+	pos, pre := a.pos, a.pre
+	vals, suf := a.vals, a.suf
+	n := len(vals)
+	for i, v := range z {
+		re, im := float64(real(v)), float64(imag(v))
+		var pk uint64
+		pk, pre = peakAt(vals, suf, pos, pre, math.Float64bits(math.Sqrt(re*re+im*im)))
+		p := math.Float64frombits(pk)
+		switch {
+		case p > env:
+			env += a.aAttack * (p - env)
+			hangC = a.hangN
+		case hangC > 0:
+			hangC--
+		default:
+			env = max(env*a.decay, a.floor)
+		}
+		if pos++; pos == n {
+			a.endBlock()
+			pos = 0
+		}
+		g[i] = float32(agcTargetPeak / env)
+	}
+	a.pos, a.pre = pos, pre
+	a.env, a.hangC = env, hangC
+}
+
+// apply delays the audio of the work samples last measured (up of them
+// a work sample, in place) and multiplies each by its gain, moving
+// linearly from the last work sample's gain to this one's across the up
+// samples.
+func (w *workAGC) apply(audio []float32) {
+	line, pos, up := w.line, w.pos, w.up
+	g0 := w.g
+	step := 1 / float32(up)
+	for j, g1 := range w.gains[:len(audio)/up] {
+		dg := (g1 - g0) * step
+		gk := g0
+		for k := j * up; k < (j+1)*up; k++ {
+			gk += dg
+			y := line[pos]
+			line[pos] = audio[k]
+			audio[k] = y * gk
+			if pos++; pos == len(line) {
+				pos = 0
+			}
+		}
+		g0 = g1
+	}
+	w.pos, w.g = pos, g0
 }

@@ -156,6 +156,7 @@ type Channel struct {
 	am     *AMDemod
 	sam    *SAMDemod
 	agc    *AGC
+	wagc   *workAGC // the AGC of an SSB channel with a detector (ssbDetector), instead of agc
 	gain   float32
 	delay  int
 	a      []complex64   // first-stage output (Process)
@@ -335,7 +336,12 @@ func buildChannel(cfg RxConfig, in chainInput) (*Channel, error) {
 		c.sam = NewSAMDemod(fa)
 	}
 	c.gain = float32(math.Pow(10, cfg.GainDB/20))
-	if cfg.AGC != AGCOff {
+	switch {
+	case cfg.AGC == AGCOff:
+	case c.det != nil:
+		c.wagc = newWorkAGC(cfg.AGC.Timing(), fw, c.det.it.u)
+		c.delay += c.wagc.Delay()
+	default:
 		c.agc = NewAGC(cfg.AGC.Timing(), fa)
 		c.delay += c.agc.Delay()
 	}
@@ -464,6 +470,9 @@ func (c *Channel) Reset() {
 	if c.agc != nil {
 		c.agc.Reset()
 	}
+	if c.wagc != nil {
+		c.wagc.Reset()
+	}
 	if c.tuner != nil {
 		c.tuner.Reset()
 	}
@@ -522,6 +531,9 @@ func (c *Channel) processWork(dst []float32, x []complex64) []float32 {
 	if c.det != nil {
 		m := len(c.f) * c.det.it.u
 		dst, out = growAudio(dst, m)
+		if c.wagc != nil {
+			c.wagc.measure(c.f)
+		}
 		c.det.Process(out, c.f)
 	} else {
 		switch {
@@ -543,7 +555,9 @@ func (c *Channel) processWork(dst []float32, x []complex64) []float32 {
 			c.sam.Process(out, z)
 		}
 	}
-	if c.agc != nil {
+	if c.wagc != nil {
+		c.wagc.apply(out)
+	} else if c.agc != nil {
 		c.agc.Process(out, out)
 	} else if c.gain != 1 {
 		for i := range out {
