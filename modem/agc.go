@@ -237,13 +237,18 @@ type workAGC struct {
 	pos   int
 	g     float32   // the gain of the last work sample
 	gains []float32 // scratch: the gains of a block's work samples
+	tmp   []float32 // scratch: a block's tail, the line's next contents
+	ramp  []float32 // (k+1)/up, k < up
 }
 
 // newWorkAGC returns the AGC of timing t for a channel of work rate fw
 // whose detector interpolates by up.
 func newWorkAGC(t AGCTiming, fw float64, up int) *workAGC {
 	a := NewAGC(t, fw)
-	w := &workAGC{a: a, up: up, line: make([]float32, up*a.Delay())}
+	w := &workAGC{a: a, up: up, line: make([]float32, up*a.Delay()), ramp: make([]float32, up)}
+	for k := range w.ramp {
+		w.ramp[k] = float32(k+1) / float32(up)
+	}
 	w.Reset()
 	return w
 }
@@ -271,14 +276,23 @@ func (w *workAGC) measure(z []complex64) {
 	pos, pre := a.pos, a.pre
 	vals, suf := a.vals, a.suf
 	n := len(vals)
+	keep := 1 - a.aAttack
+	// the sliding maximum runs on |z|² (the same maximum, sqrt being
+	// monotone) and the square root is taken only when the maximum
+	// changes, which it does on a few samples in a window
+	lastPk, p := uint64(math.MaxUint64), 0.0
 	for i, v := range z {
 		re, im := float64(real(v)), float64(imag(v))
 		var pk uint64
-		pk, pre = peakAt(vals, suf, pos, pre, math.Float64bits(math.Sqrt(re*re+im*im)))
-		p := math.Float64frombits(pk)
+		pk, pre = peakAt(vals, suf, pos, pre, math.Float64bits(re*re+im*im))
+		if pk != lastPk {
+			lastPk, p = pk, math.Sqrt(math.Float64frombits(pk))
+		}
 		switch {
 		case p > env:
-			env += a.aAttack * (p - env)
+			// env + aAttack·(p − env), one multiply and one add on env
+			// (the chain each sample waits on while the peak leads)
+			env = env*keep + a.aAttack*p
 			hangC = a.hangN
 		case hangC > 0:
 			hangC--
@@ -298,24 +312,39 @@ func (w *workAGC) measure(z []complex64) {
 // apply delays the audio of the work samples last measured (up of them
 // a work sample, in place) and multiplies each by its gain, moving
 // linearly from the last work sample's gain to this one's across the up
-// samples.
+// samples. A block at least as long as the delay line is delayed by
+// copies (the line's contents, then the block's head), the line keeping
+// the block's tail; shorter ones go sample by sample.
 func (w *workAGC) apply(audio []float32) {
-	line, pos, up := w.line, w.pos, w.up
-	g0 := w.g
-	step := 1 / float32(up)
-	for j, g1 := range w.gains[:len(audio)/up] {
-		dg := (g1 - g0) * step
-		gk := g0
-		for k := j * up; k < (j+1)*up; k++ {
-			gk += dg
-			y := line[pos]
-			line[pos] = audio[k]
-			audio[k] = y * gk
-			if pos++; pos == len(line) {
+	line, n, l := w.line, len(audio), len(w.line)
+	if n >= l {
+		w.tmp = append(w.tmp[:0], audio[n-l:]...)
+		copy(audio[l:], audio[:n-l])
+		k := copy(audio, line[w.pos:])
+		copy(audio[k:l], line[:w.pos])
+		copy(line, w.tmp)
+		w.pos = 0
+	} else {
+		pos := w.pos
+		for k, x := range audio {
+			audio[k], line[pos] = line[pos], x
+			if pos++; pos == l {
 				pos = 0
 			}
 		}
+		w.pos = pos
+	}
+	up, ramp := w.up, w.ramp
+	g0 := w.g
+	for j, g1 := range w.gains[:n/up] {
+		// g0 + (g1 − g0)·(k+1)/up from a table, not by adding a step a
+		// sample: that made every sample wait on the last
+		dg := g1 - g0
+		seg := audio[j*up : (j+1)*up]
+		for k := range seg {
+			seg[k] *= g0 + dg*ramp[k]
+		}
 		g0 = g1
 	}
-	w.pos, w.g = pos, g0
+	w.g = g0
 }
