@@ -8,7 +8,7 @@
 # same decode built with and without the assembly kernels), tune (one
 # channel with and without --fine-tune), channels (1, 32, 128 and 256
 # channels in one pass, side by side; then 1 and 32 with the capture read
-# as 2.5 MS/s). Each section
+# as 2.5 MS/s, and 32 and 128 with the default AGC). Each section
 # times its commands alternately on the same file, RUNS times each
 # (default 3), and prints input MS/s, the ratio, CPU time and peak
 # resident memory (GNU time). The machine is shared: quote ratios from
@@ -168,6 +168,19 @@ section_channels() {
 	done
 	awk -v a="$(best "$work/r25_1")" -v b="$(best "$work/r25_32")" -v ca="$(bestcpu "$work/r25_1")" -v cb="$(bestcpu "$work/r25_32")" 'BEGIN {
 		printf "  2.5 MS/s best wall: one channel %.3f s, 32 channels %.3f s (%.2f single passes); best CPU %.3f / %.3f s\n", a, b, b/a, ca, cb }'
+
+	# What a user gets by default: the AGC on (medium).
+	echo "  with the default AGC (medium) instead of --agc off:"
+	: >"$work/agc_32"; : >"$work/agc_128"
+	for i in $(seq "$runs"); do
+		for c in 32 128; do
+			rm -rf "$work/chs"; mkdir -p "$work/chs"
+			# shellcheck disable=SC2046
+			timed "ssbkit rx, $c channels, default AGC (run $i)" "$work/agc_$c" "$ssbkit" rx "$cap" --rate 2.4M $(channel_offsets "$c") -q -o "$work/chs/c_{freq}.wav"
+		done
+	done
+	awk -v a="$(best "$work/agc_32")" -v b="$(best "$work/agc_128")" -v ca="$(bestcpu "$work/agc_32")" -v cb="$(bestcpu "$work/agc_128")" 'BEGIN {
+		printf "  default AGC best wall: 32 channels %.3f s, 128 channels %.3f s; best CPU %.3f / %.3f s\n", a, b, ca, cb }'
 	rm -rf "$work/chs"
 }
 
