@@ -88,6 +88,7 @@ const (
 // 0.7 % of the target, when it leaves the delay line.
 type AGC struct {
 	aAttack      float64 // one-pole coefficient of the attack
+	keep         float64 // 1 − aAttack
 	decay        float64 // per-sample factor of the decay
 	hangN, hangC int
 	env          float64
@@ -123,6 +124,7 @@ func NewAGC(t AGCTiming, rate float64) *AGC {
 		floor:   agcTargetPeak * math.Pow(10, -agcMaxGainDB/20.0),
 		line:    make([]float32, max(1, int(math.Round(agcLookahead*t.Attack*rate)))),
 	}
+	a.keep = 1 - a.aAttack
 	a.vals = make([]uint64, len(a.line))
 	a.suf = make([]uint64, len(a.line)+1)
 	a.Reset()
@@ -173,6 +175,22 @@ func peakAt(vals, suf []uint64, pos int, pre, b uint64) (peak, newPre uint64) {
 	return max(suf[pos+1], pre), pre
 }
 
+// step moves the envelope env and the hang counter on by one sample of
+// peak p: up towards a larger peak with the attack's one-pole filter,
+// env + aAttack·(p − env) computed as env·(1 − aAttack) + aAttack·p (one
+// multiply and one add on env, the chain each sample waits on while the
+// peak leads), holding hangN samples after the last rise, then down by
+// the decay factor to the floor.
+func (a *AGC) step(p, env float64, hangC int) (float64, int) {
+	switch {
+	case p > env:
+		return env*a.keep + a.aAttack*p, a.hangN
+	case hangC > 0:
+		return env, hangC - 1
+	}
+	return max(env*a.decay, a.floor), 0
+}
+
 // endBlock computes the suffix maxima of the block just completed, which
 // serve the next one.
 func (a *AGC) endBlock() {
@@ -195,16 +213,7 @@ func (a *AGC) Process(dst, src []float32) []float32 {
 	dst = dst[:len(src)]
 	env, hangC := a.env, a.hangC
 	for i, x := range src {
-		v := a.peak(math.Abs(float64(x)))
-		switch {
-		case v > env:
-			env += a.aAttack * (v - env)
-			hangC = a.hangN
-		case hangC > 0:
-			hangC--
-		default:
-			env = max(env*a.decay, a.floor)
-		}
+		env, hangC = a.step(a.peak(math.Abs(float64(x))), env, hangC)
 		y := a.line[a.pos]
 		a.line[a.pos] = x
 		a.pos++
@@ -276,7 +285,6 @@ func (w *workAGC) measure(z []complex64) {
 	pos, pre := a.pos, a.pre
 	vals, suf := a.vals, a.suf
 	n := len(vals)
-	keep := 1 - a.aAttack
 	// the sliding maximum runs on |z|² (the same maximum, sqrt being
 	// monotone) and the square root is taken only when the maximum
 	// changes, which it does on a few samples in a window
@@ -288,17 +296,7 @@ func (w *workAGC) measure(z []complex64) {
 		if pk != lastPk {
 			lastPk, p = pk, math.Sqrt(math.Float64frombits(pk))
 		}
-		switch {
-		case p > env:
-			// env + aAttack·(p − env), one multiply and one add on env
-			// (the chain each sample waits on while the peak leads)
-			env = env*keep + a.aAttack*p
-			hangC = a.hangN
-		case hangC > 0:
-			hangC--
-		default:
-			env = max(env*a.decay, a.floor)
-		}
+		env, hangC = a.step(p, env, hangC)
 		if pos++; pos == n {
 			a.endBlock()
 			pos = 0
