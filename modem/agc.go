@@ -240,21 +240,28 @@ func (a *AGC) Process(dst, src []float32) []float32 {
 // work-rate samples by the detector's own delay besides, which only adds
 // to it.
 type workAGC struct {
-	a     *AGC      // the envelope at the work rate (its delay line unused)
-	up    int       // audio samples a work sample
-	line  []float32 // the audio's delay line
-	pos   int
-	g     float32   // the gain of the last work sample
-	gains []float32 // scratch: the gains of a block's work samples
-	tmp   []float32 // scratch: a block's tail, the line's next contents
-	ramp  []float32 // (k+1)/up, k < up
+	envelope
+	up   int       // audio samples a work sample
+	line []float32 // the audio's delay line
+	pos  int
+	g    float32   // the gain of the last work sample
+	tmp  []float32 // scratch: a block's tail, the line's next contents
+	ramp []float32 // (k+1)/up, k < up
+}
+
+// envelope is the work-rate half of workAGC and preAGC: an AGC's
+// envelope (its delay line unused) run on |z|, and the gains of the
+// last block's samples.
+type envelope struct {
+	a     *AGC
+	gains []float32
 }
 
 // newWorkAGC returns the AGC of timing t for a channel of work rate fw
 // whose detector interpolates by up.
 func newWorkAGC(t AGCTiming, fw float64, up int) *workAGC {
 	a := NewAGC(t, fw)
-	w := &workAGC{a: a, up: up, line: make([]float32, up*a.Delay()), ramp: make([]float32, up)}
+	w := &workAGC{envelope: envelope{a: a}, up: up, line: make([]float32, up*a.Delay()), ramp: make([]float32, up)}
 	for k := range w.ramp {
 		w.ramp[k] = float32(k+1) / float32(up)
 	}
@@ -274,8 +281,8 @@ func (w *workAGC) Reset() {
 }
 
 // measure runs the envelope over the work-rate samples z, keeping the
-// gain of each for apply.
-func (w *workAGC) measure(z []complex64) {
+// gain of each (agcTargetPeak/env) in w.gains.
+func (w *envelope) measure(z []complex64) {
 	if cap(w.gains) < len(z) {
 		w.gains = make([]float32, len(z))
 	}
@@ -345,4 +352,62 @@ func (w *workAGC) apply(audio []float32) {
 		g0 = g1
 	}
 	w.g = g0
+}
+
+// preAGC is the AGC of an SSB channel that reaches the audio rate by a
+// rational resampler (no detector folded into an interpolator): the
+// envelope as workAGC's, at the work rate on |z|, and the gain applied
+// there too, to the work-rate samples delayed by the look-ahead, before
+// the resampler and the detector (which smooth it). The delay line is a
+// whole number of audio samples long (Delay), so that the detector's
+// phase can count it: the fewest work samples, at least the AGC's five
+// attack time constants, that are.
+type preAGC struct {
+	envelope
+	line []complex64
+	pos  int
+	da   int // the delay in audio samples
+}
+
+// newPreAGC returns the AGC of timing t for a channel of work rate fw
+// and audio rate fa, or nil when no delay line of a whole number of
+// audio samples fits within a second.
+func newPreAGC(t AGCTiming, fw, fa float64) *preAGC {
+	l, m, err := rateRatio(fw, fa) // fa/fw = l/m
+	if err != nil {
+		return nil
+	}
+	a := NewAGC(t, fw)
+	lw := (a.Delay() + m - 1) / m * m
+	if float64(lw) > fw {
+		return nil
+	}
+	p := &preAGC{envelope: envelope{a: a}, line: make([]complex64, lw), da: lw / m * l}
+	p.Reset()
+	return p
+}
+
+// Delay returns the look-ahead in audio samples.
+func (p *preAGC) Delay() int { return p.da }
+
+// Reset clears the envelope and the delay line.
+func (p *preAGC) Reset() {
+	p.a.Reset()
+	clear(p.line)
+	p.pos = 0
+}
+
+// apply delays the work-rate samples z last measured (in place) and
+// multiplies each by its gain.
+func (p *preAGC) apply(z []complex64) {
+	line, pos := p.line, p.pos
+	for j, g := range p.gains[:len(z)] {
+		y := line[pos]
+		line[pos] = z[j]
+		z[j] = complex(real(y)*g, imag(y)*g)
+		if pos++; pos == len(line) {
+			pos = 0
+		}
+	}
+	p.pos = pos
 }

@@ -157,6 +157,7 @@ type Channel struct {
 	sam    *SAMDemod
 	agc    *AGC
 	wagc   *workAGC // the AGC of an SSB channel with a detector (ssbDetector), instead of agc
+	pagc   *preAGC  // the AGC of an SSB channel with a rational resampler, instead of agc
 	gain   float32
 	delay  int
 	a      []complex64   // first-stage output (Process)
@@ -324,6 +325,13 @@ func buildChannel(cfg RxConfig, in chainInput) (*Channel, error) {
 		}
 	}
 
+	if cfg.AGC != AGCOff && c.det == nil && c.rs != nil && (cfg.Mode == USB || cfg.Mode == LSB) {
+		// before the resampler and the detector, whose phase counts its
+		// delay
+		if c.pagc = newPreAGC(cfg.AGC.Timing(), fw, fa); c.pagc != nil {
+			c.delay += c.pagc.Delay()
+		}
+	}
 	switch cfg.Mode {
 	case USB, LSB:
 		if c.det == nil {
@@ -337,7 +345,7 @@ func buildChannel(cfg RxConfig, in chainInput) (*Channel, error) {
 	}
 	c.gain = float32(math.Pow(10, cfg.GainDB/20))
 	switch {
-	case cfg.AGC == AGCOff:
+	case cfg.AGC == AGCOff, c.pagc != nil:
 	case c.det != nil:
 		c.wagc = newWorkAGC(cfg.AGC.Timing(), fw, c.det.it.u)
 		c.delay += c.wagc.Delay()
@@ -473,6 +481,9 @@ func (c *Channel) Reset() {
 	if c.wagc != nil {
 		c.wagc.Reset()
 	}
+	if c.pagc != nil {
+		c.pagc.Reset()
+	}
 	if c.tuner != nil {
 		c.tuner.Reset()
 	}
@@ -536,6 +547,10 @@ func (c *Channel) processWork(dst []float32, x []complex64) []float32 {
 		}
 		c.det.Process(out, c.f)
 	} else {
+		if c.pagc != nil {
+			c.pagc.measure(c.f)
+			c.pagc.apply(c.f)
+		}
 		switch {
 		case c.interp != nil:
 			c.z = c.interp.Process(c.z, c.f)
