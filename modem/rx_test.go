@@ -840,7 +840,8 @@ func TestPlanChannelRational(t *testing.T) {
 // the AGC off) does: for a tone (faded in, so that no filter's step
 // response sets the level) |z| is the audio's amplitude, so the settled
 // peaks agree within 0.2 dB and sit at the target within 0.5 dB
-// (TestAGC's tolerance), and after a 40 dB drop the gain holds for the
+// (TestAGC's tolerance), the audio correlates with the reference's to
+// 0.999 (the same time and detector phase), and after a 40 dB drop the gain holds for the
 // hang and then rises at the mode's rate as the reference's does (within
 // 0.5 dB at each point). Noise bursts 40 dB up leave the output at most
 // 10 % above the audio-rate AGC's bound target/(1 − e⁻⁵): the envelope
@@ -900,6 +901,18 @@ func testChannelWorkRateAGC(t *testing.T, rate float64) {
 		pk, pr := peak(y, a1-4800, a1), peak(yr, a1-4800, a1)
 		if d := db(pk / agcTargetPeak); math.Abs(d) > tolPeak {
 			t.Errorf("%g S/s %v: settled peak %.4f, target %g", rate, m, pk, agcTargetPeak)
+		}
+		// the same audio, not just the same level: aligned in time and
+		// in the detector's phase (a phase error of the carrier would
+		// turn the tone, an alignment error shift it)
+		var sxy, sxx, syy float64
+		for i := a1 - 4800; i < a1; i++ {
+			sxy += float64(y[i]) * float64(yr[i])
+			sxx += float64(y[i]) * float64(y[i])
+			syy += float64(yr[i]) * float64(yr[i])
+		}
+		if r := sxy / math.Sqrt(sxx*syy); r < 0.999 {
+			t.Errorf("%g S/s %v: settled audio correlates %.5f with the audio-rate AGC's", rate, m, r)
 		}
 		if d := db(pk / pr); math.Abs(d) > tolRef {
 			t.Errorf("%g S/s %v: settled peak %.4f, the audio-rate AGC's %.4f (%.2f dB)", rate, m, pk, pr, d)
