@@ -146,6 +146,18 @@ func TestReceiverPlanner(t *testing.T) {
 			t.Errorf("%d channels at %g S/s: channeliser %v, want %v", tc.n, tc.rate, got, tc.bank)
 		}
 	}
+	// a planned bank that cannot be built (decimation 512 of 512
+	// sub-bands, beyond the channeliser's M/2): FrontAuto falls back to
+	// per-channel first stages, FrontChanneliser reports it
+	testBankPlan = &bankPlan{m: 512, d: 512, pass: 2.4e6/1024 + 1425}
+	defer func() { testBankPlan = nil }()
+	if r, err := NewReceiver(mk(ChanneliserMinChannels, 2.4e6)); err != nil || r.Channeliser() != nil {
+		t.Errorf("an unbuildable bank: err %v, channeliser %v; want per-channel stages", err, r != nil && r.Channeliser() != nil)
+	}
+	if _, err := NewReceiverFront(mk(ChanneliserMinChannels, 2.4e6), FrontChanneliser); err == nil {
+		t.Error("an unbuildable bank forced without an error")
+	}
+	testBankPlan = nil
 	// different capture rates cannot share a bank
 	cfgs := append(mk(4, 2.4e6), mk(4, 2.048e6)...)
 	if _, err := NewReceiverFront(cfgs, FrontChanneliser); err == nil {

@@ -73,11 +73,18 @@ func NewReceiverFront(cfgs []RxConfig, front FrontEnd) (*Receiver, error) {
 			return nil, errors.New("modem: no channeliser fits these channels (rates, rejections or widths differ, or the capture is too narrow)")
 		}
 		var err error
-		if r.bank, r.bands, r.chans, err = bankChains(full, bp); err != nil {
+		r.bank, r.bands, r.chans, err = bankChains(full, bp)
+		switch {
+		case err == nil:
+			r.sel = r.bank.selection(r.bands)
+			return r, nil
+		case front == FrontChanneliser:
 			return nil, err
 		}
-		r.sel = r.bank.selection(r.bands)
-		return r, nil
+		// a chain the planner's count admitted but that cannot be built
+		// (a rational resampler with no plan at the sub-band rate): the
+		// per-channel first stages, as with fewer channels
+		r = &Receiver{}
 	}
 	for _, cfg := range full {
 		c, err := buildChannel(cfg, chainInput{rate: cfg.Rate, offset: cfg.Offset})
