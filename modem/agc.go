@@ -147,24 +147,19 @@ func (a *AGC) Reset() {
 // peak pushes v = |x| (≥ 0) at block position a.pos and returns the
 // largest of the last len(line) values (of those seen, at the start).
 // Process then stores x in the delay line at a.pos and advances it,
-// calling endBlock when a block is complete; peak itself stays small
-// enough to be inlined.
+// calling endBlock when a block is complete.
 func (a *AGC) peak(v float64) float64 {
-	b := math.Float64bits(v)
-	a.vals[a.pos] = b
-	if a.pos == 0 {
-		a.pre = b
-	} else {
-		a.pre = max(a.pre, b)
-	}
-	return math.Float64frombits(max(a.suf[a.pos+1], a.pre))
+	var pk uint64
+	pk, a.pre = peakAt(a.vals, a.suf, a.pos, a.pre, math.Float64bits(v))
+	return math.Float64frombits(pk)
 }
 
 // peakAt pushes b, the bits of a value ≥ 0, at block position pos and
 // returns the bits of the largest of the last len(vals) values (of those
 // seen, at the start), with pre, the running maximum of the current
-// block, updated: AGC.peak with the position and running maximum in the
-// caller's locals (workAGC.measure), small enough to be inlined.
+// block, updated: the sliding maximum of AGC.peak and envelope.measure,
+// which keep the position and running maximum in locals where they can;
+// small enough to be inlined.
 func peakAt(vals, suf []uint64, pos int, pre, b uint64) (peak, newPre uint64) {
 	vals[pos] = b
 	if pos == 0 {
