@@ -92,9 +92,13 @@ func planChannel(inRate, audioRate, minWork, protect, trans, attenDB float64) (C
 			break
 		}
 	}
+	tooLow := fmt.Errorf("modem: capture rate %g Hz is too low for a ±%g Hz channel", inRate, protect)
 	if d > 0 {
 		p, ok := planDecimation(inRate, d, protect, attenDB)
-		if !ok {
+		switch {
+		case p.WorkRate < 2*protect:
+			return ChannelPlan{}, tooLow
+		case !ok:
 			return ChannelPlan{}, errors.New("modem: no decimation chain found")
 		}
 		return p, nil
@@ -130,7 +134,7 @@ func planChannel(inRate, audioRate, minWork, protect, trans, attenDB float64) (C
 	}
 	if math.IsInf(best, 1) {
 		if inRate/float64(dmax) < 2*protect {
-			return ChannelPlan{}, fmt.Errorf("modem: capture rate %g Hz is too low for a ±%g Hz channel", inRate, protect)
+			return ChannelPlan{}, tooLow
 		}
 		return ChannelPlan{}, errors.New("modem: no decimation chain found")
 	}
