@@ -8,6 +8,7 @@ import (
 	"math/big"
 	"math/cmplx"
 	"math/rand/v2"
+	"strings"
 	"testing"
 )
 
@@ -939,6 +940,18 @@ func testChannelWorkRateAGC(t *testing.T, rate float64) {
 			t.Errorf("%g S/s %v: bursts peak at %.4f, above %.4f·%g", rate, m, p, limit, overMax)
 		} else {
 			t.Logf("%g S/s %v: bursts peak at %.4f (limit %.4f)", rate, m, p, limit)
+		}
+	}
+}
+
+// TestPlanChannelTooLow: a capture rate below the channel's width is
+// named as such, whether the audio rate is a multiple of it (2 kHz into
+// 48 kHz) or not (2.1 kHz).
+func TestPlanChannelTooLow(t *testing.T) {
+	for _, fs := range []float64{2000, 2100} {
+		_, err := PlanChannel(fs, 48000, 5400, 1350, 80)
+		if err == nil || !strings.Contains(err.Error(), "too low") {
+			t.Errorf("%g Hz: %v, want a capture rate too low", fs, err)
 		}
 	}
 }
