@@ -28,8 +28,8 @@ the tuned frequency in whole Hz (or the signed offset without a centre).
 AGC figures (common practice): slow attack 2 ms, hang 1 s, decay 6 dB/s;
 medium 2 ms, 0.3 s, 20 dB/s; fast 2 ms, 0.1 s, 60 dB/s; target peak −6 dBFS.
 For usb/lsb the AGC follows the channel's envelope (the complex signal's
-magnitude, before detection) rather than the audio's peaks; sudden noise
-may then peak up to about 0.6 dB above the target.
+magnitude, before detection) rather than the audio's peaks; the audio may
+then peak up to about 0.7 dB above the target.
 With --agc off the gain is --gain dB (0 = unity: a usb tone of magnitude a
 gives audio of amplitude a).
 
