@@ -122,20 +122,26 @@ func butterfliesGo(x0, x1, x2, x3, w1, w2, w3 []complex128) {
 	x1, x2, x3 = x1[:len(x0)], x2[:len(x0)], x3[:len(x0)]
 	w1, w2, w3 = w1[:len(x0)], w2[:len(x0)], w3[:len(x0)]
 	for i := range x0 {
-		a, bb, c, d := x0[i], x1[i], x2[i], x3[i]
-		t0r, t0i := real(a)+real(c), imag(a)+imag(c)
-		t1r, t1i := real(a)-real(c), imag(a)-imag(c)
-		t2r, t2i := real(bb)+real(d), imag(bb)+imag(d)
-		t3r, t3i := imag(bb)-imag(d), real(d)-real(bb) // −j·(b − d)
-		v1, v2, v3 := w1[i], w2[i], w3[i]
-		x0[i] = complex(t0r+t2r, t0i+t2i)
-		ur, ui := t1r+t3r, t1i+t3i
-		x1[i] = complex(ur*real(v1)-ui*imag(v1), ur*imag(v1)+ui*real(v1))
-		ur, ui = t0r-t2r, t0i-t2i
-		x2[i] = complex(ur*real(v2)-ui*imag(v2), ur*imag(v2)+ui*real(v2))
-		ur, ui = t1r-t3r, t1i-t3i
-		x3[i] = complex(ur*real(v3)-ui*imag(v3), ur*imag(v3)+ui*real(v3))
+		y0, y1, y2, y3 := Butterfly4(x0[i], x1[i], x2[i], x3[i])
+		x0[i], x1[i], x2[i], x3[i] = y0, Mul(y1, w1[i]), Mul(y2, w2[i]), Mul(y3, w3[i])
 	}
+}
+
+// Butterfly4 returns the radix-4 butterfly of a, b, c, d before its
+// twiddles: y_q = Σ_p x_p·(−j)^{pq}, as sums and differences of a ± c and
+// b ± d (−j·(b − d) by swapping parts). Every Go radix-4 pass, here and
+// in package spectral's fused passes, computes it so.
+func Butterfly4(a, b, c, d complex128) (y0, y1, y2, y3 complex128) {
+	t0, t1, t2 := a+c, a-c, b+d
+	t3 := complex(imag(b)-imag(d), real(d)-real(b)) // −j·(b − d)
+	return t0 + t2, t1 + t3, t0 - t2, t1 - t3
+}
+
+// Mul returns y·w with the float64 products written out (Go may fuse
+// or reorder a complex product otherwise; the vector kernels round these
+// the same way).
+func Mul(y, w complex128) complex128 {
+	return complex(real(y)*real(w)-imag(y)*imag(w), real(y)*imag(w)+imag(y)*real(w))
 }
 
 // Tail finishes blocks of length l ≤ 8 left by the radix-4 passes.
@@ -148,14 +154,7 @@ func (f *Radix4) Tail(x []complex128, l int) {
 		for s := 0; s < n; s += 8 {
 			b := x[s : s+8]
 			for i := range 2 {
-				a, bb, c, d := b[i], b[i+2], b[i+4], b[i+6]
-				t0, t1 := a+c, a-c
-				t2 := bb + d
-				t3 := complex(imag(bb)-imag(d), real(d)-real(bb))
-				b[i] = t0 + t2
-				b[i+2] = t1 + t3
-				b[i+4] = t0 - t2
-				b[i+6] = t1 - t3
+				b[i], b[i+2], b[i+4], b[i+6] = Butterfly4(b[i], b[i+2], b[i+4], b[i+6])
 				if i == 1 {
 					b[i+2] *= w1
 					b[i+4] *= complex(0, -1)
@@ -169,11 +168,7 @@ func (f *Radix4) Tail(x []complex128, l int) {
 	case 4:
 		for s := 0; s < n; s += 4 {
 			b := x[s : s+4]
-			a, bb, c, d := b[0], b[1], b[2], b[3]
-			t0, t1 := a+c, a-c
-			t2 := bb + d
-			t3 := complex(imag(bb)-imag(d), real(d)-real(bb))
-			b[0], b[1], b[2], b[3] = t0+t2, t1+t3, t0-t2, t1-t3
+			b[0], b[1], b[2], b[3] = Butterfly4(b[0], b[1], b[2], b[3])
 		}
 	case 2:
 		for s := 0; s < n; s += 2 {

@@ -68,22 +68,12 @@ func firstPass(f *fft.Radix4, work []complex128, seg []complex64, win []float64)
 	v0, v1, v2, v3 := win[:m], win[m : 2*m][:m], win[2*m : 3*m][:m], win[3*m:][:m]
 	x0, x1, x2, x3 := work[:m], work[m : 2*m][:m], work[2*m : 3*m][:m], work[3*m:][:m]
 	for i := range x0 {
-		ar, ai := float64(real(s0[i]))*v0[i], float64(imag(s0[i]))*v0[i]
-		br, bi := float64(real(s1[i]))*v1[i], float64(imag(s1[i]))*v1[i]
-		cr, ci := float64(real(s2[i]))*v2[i], float64(imag(s2[i]))*v2[i]
-		dr, di := float64(real(s3[i]))*v3[i], float64(imag(s3[i]))*v3[i]
-		t0r, t0i := ar+cr, ai+ci
-		t1r, t1i := ar-cr, ai-ci
-		t2r, t2i := br+dr, bi+di
-		t3r, t3i := bi-di, dr-br // −j·(b − d)
-		w1, w2, w3 := tw1[i], tw2[i], tw3[i]
-		x0[i] = complex(t0r+t2r, t0i+t2i)
-		ur, ui := t1r+t3r, t1i+t3i
-		x1[i] = complex(ur*real(w1)-ui*imag(w1), ur*imag(w1)+ui*real(w1))
-		ur, ui = t0r-t2r, t0i-t2i
-		x2[i] = complex(ur*real(w2)-ui*imag(w2), ur*imag(w2)+ui*real(w2))
-		ur, ui = t1r-t3r, t1i-t3i
-		x3[i] = complex(ur*real(w3)-ui*imag(w3), ur*imag(w3)+ui*real(w3))
+		y0, y1, y2, y3 := fft.Butterfly4(
+			complex(float64(real(s0[i]))*v0[i], float64(imag(s0[i]))*v0[i]),
+			complex(float64(real(s1[i]))*v1[i], float64(imag(s1[i]))*v1[i]),
+			complex(float64(real(s2[i]))*v2[i], float64(imag(s2[i]))*v2[i]),
+			complex(float64(real(s3[i]))*v3[i], float64(imag(s3[i]))*v3[i]))
+		x0[i], x1[i], x2[i], x3[i] = y0, fft.Mul(y1, tw1[i]), fft.Mul(y2, tw2[i]), fft.Mul(y3, tw3[i])
 	}
 }
 
@@ -97,19 +87,8 @@ func lastPassPower(f *fft.Radix4, work []complex128, out []float64, add bool, co
 	}
 	for s := 0; s < n; s += 4 {
 		b := work[s : s+4]
-		a, bb, c, d := b[0], b[1], b[2], b[3]
-		t0r, t0i := real(a)+real(c), imag(a)+imag(c)
-		t1r, t1i := real(a)-real(c), imag(a)-imag(c)
-		t2r, t2i := real(bb)+real(d), imag(bb)+imag(d)
-		t3r, t3i := imag(bb)-imag(d), real(d)-real(bb)
-		y0r, y0i := t0r+t2r, t0i+t2i
-		y1r, y1i := t1r+t3r, t1i+t3i
-		y2r, y2i := t0r-t2r, t0i-t2i
-		y3r, y3i := t1r-t3r, t1i-t3i
-		p0 := y0r*y0r + y0i*y0i
-		p1 := y1r*y1r + y1i*y1i
-		p2 := y2r*y2r + y2i*y2i
-		p3 := y3r*y3r + y3i*y3i
+		y0, y1, y2, y3 := fft.Butterfly4(b[0], b[1], b[2], b[3])
+		p0, p1, p2, p3 := power(y0), power(y1), power(y2), power(y3)
 		o := out[s : s+4]
 		if add {
 			o[0] += p0
@@ -128,6 +107,9 @@ func lastPassPower(f *fft.Radix4, work []complex128, out []float64, add bool, co
 		}
 	}
 }
+
+// power returns |y|².
+func power(y complex128) float64 { return real(y)*real(y) + imag(y)*imag(y) }
 
 // gonumFFT transforms lengths that are not powers of two with gonum's
 // mixed-radix FFT (natural order). A CmplxFFT keeps work space, so each
