@@ -214,6 +214,33 @@ rdone:
 	VZEROUPPER
 	RET
 
+// ITAPS adds the taps of one group of four phases for one input to two
+// accumulators, the even taps to A and the odd ones to B (T0, T1
+// scratch): taps rows from BX (R8 walks them, DX bytes apart), the input
+// samples broadcast from SI, R9 taps. PAIR, ONE and DONE are the macro's
+// labels, unique per use.
+#define ITAPS(A, B, T0, T1, PAIR, ONE, DONE) \
+	MOVQ BX, R8; \
+	XORQ R13, R13; \
+	MOVQ R9, R10; \
+	SUBQ $1, R10; \
+PAIR: \
+	CMPQ         R13, R10; \
+	JGE          ONE; \
+	VBROADCASTSD (SI)(R13*8), T0; \
+	VBROADCASTSD 8(SI)(R13*8), T1; \
+	VFMADD231PS  (R8), T0, A; \
+	VFMADD231PS  (R8)(DX*1), T1, B; \
+	LEAQ         (R8)(DX*2), R8; \
+	ADDQ         $2, R13; \
+	JMP          PAIR; \
+ONE: \
+	CMPQ         R13, R9; \
+	JGE          DONE; \
+	VBROADCASTSD (SI)(R13*8), T0; \
+	VFMADD231PS  (R8), T0, A; \
+DONE:
+
 // func interpAVX2(dst *complex64, x *complex64, n int, taps *float32, k, full int, mask *[8]int32, part, stride int)
 //
 // For each input j < n and phase p < u = 4·full + (u mod 4):
@@ -246,29 +273,7 @@ iouter:
 igroup:
 	VXORPS Y0, Y0, Y0
 	VXORPS Y1, Y1, Y1
-	MOVQ   BX, R8
-	XORQ   R13, R13
-	MOVQ   R9, R10
-	SUBQ   $1, R10
-
-igpair:
-	CMPQ         R13, R10
-	JGE          igone
-	VBROADCASTSD (SI)(R13*8), Y2
-	VBROADCASTSD 8(SI)(R13*8), Y3
-	VFMADD231PS  (R8), Y2, Y0
-	VFMADD231PS  (R8)(DX*1), Y3, Y1
-	LEAQ         (R8)(DX*2), R8
-	ADDQ         $2, R13
-	JMP          igpair
-
-igone:
-	CMPQ         R13, R9
-	JGE          igsum
-	VBROADCASTSD (SI)(R13*8), Y2
-	VFMADD231PS  (R8), Y2, Y0
-
-igsum:
+	ITAPS(Y0, Y1, Y2, Y3, igpair, igone, igsum)
 	VADDPS  Y1, Y0, Y0
 	VMOVUPS Y0, (R11)
 	ADDQ    $32, R11
@@ -886,29 +891,7 @@ irtgroup:
 	IRMASK(irtmask)
 	VXORPS Y0, Y0, Y0
 	VXORPS Y4, Y4, Y4
-	MOVQ   BX, R8
-	XORQ   R13, R13
-	MOVQ   R9, R10
-	SUBQ   $1, R10
-
-irtpair:
-	CMPQ         R13, R10
-	JGE          irtone
-	VBROADCASTSD (SI)(R13*8), Y10
-	VBROADCASTSD 8(SI)(R13*8), Y11
-	VFMADD231PS  (R8), Y10, Y0
-	VFMADD231PS  (R8)(DX*1), Y11, Y4
-	LEAQ         (R8)(DX*2), R8
-	ADDQ         $2, R13
-	JMP          irtpair
-
-irtone:
-	CMPQ         R13, R9
-	JGE          irtsum
-	VBROADCASTSD (SI)(R13*8), Y10
-	VFMADD231PS  (R8), Y10, Y0
-
-irtsum:
+	ITAPS(Y0, Y4, Y10, Y11, irtpair, irtone, irtsum)
 	IRSTORE(Y0, Y4, (R14))
 	ADDQ $32, BX
 	ADDQ $16, R14

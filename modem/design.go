@@ -208,9 +208,10 @@ func edgeError(h []float64, pass, stop float64) float64 {
 			fstop = append(fstop, f)
 		}
 	}
+	sym := symmetricTaps(h)
 	mag := func(fs []float64) []float64 {
 		a := make([]float64, len(fs))
-		if symmetricTaps(h) {
+		if sym {
 			zeroPhaseResponses(a, h, fs)
 			for i := range a {
 				a[i] = math.Abs(a[i])

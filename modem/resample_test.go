@@ -284,24 +284,19 @@ func TestResamplerPlanShared(t *testing.T) {
 		gb = append(gb, b.Process(nil, y[i:i+1000])...)
 	}
 	planCache.Delete(spec) // a fresh plan for the reference
-	ref, _ := NewResamplerSpec(spec)
-	want := ref.Process(nil, x)
-	if len(ga) != len(want) {
-		t.Fatalf("%d outputs, want %d", len(ga), len(want))
-	}
-	for i := range want {
-		if ga[i] != want[i] {
-			t.Fatalf("output %d: %v, want %v (the same arithmetic)", i, ga[i], want[i])
+	for _, c := range []struct {
+		name   string
+		got, x []complex64
+	}{{"first", ga, x}, {"second", gb, y}} {
+		ref, _ := NewResamplerSpec(spec)
+		want := ref.Process(nil, c.x)
+		if len(c.got) != len(want) {
+			t.Fatalf("%s resampler: %d outputs, want %d", c.name, len(c.got), len(want))
 		}
-	}
-	ref2, _ := NewResamplerSpec(spec)
-	want2 := ref2.Process(nil, y)
-	if len(gb) != len(want2) {
-		t.Fatalf("second resampler: %d outputs, want %d", len(gb), len(want2))
-	}
-	for i := range want2 {
-		if gb[i] != want2[i] {
-			t.Fatalf("second resampler, output %d: %v, want %v", i, gb[i], want2[i])
+		for i := range want {
+			if c.got[i] != want[i] {
+				t.Fatalf("%s resampler, output %d: %v, want %v (the same arithmetic)", c.name, i, c.got[i], want[i])
+			}
 		}
 	}
 }
