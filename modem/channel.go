@@ -109,10 +109,9 @@ func planChannel(inRate, audioRate, minWork, protect, trans, attenDB float64) (C
 	// hundreds of taps), so every decimation whose work rate is within
 	// twice the least is costed in multiplications per input sample:
 	// the chain, the channel filter (KaiserOrder(trans, fw) taps at fw)
-	// and the resampler (a polyphase resampler from fw takes about
-	// KaiserOrder(fw − 2·protect, fw) taps an output), two
-	// multiplications a tap; the cheapest is taken, preferring those
-	// whose resampler has few phases (cheapPhases).
+	// and the resampler (resamplerTaps an output), two multiplications a
+	// tap; the cheapest is taken, preferring those whose resampler has
+	// few phases (cheapPhases).
 	var p, pc ChannelPlan // the cheapest, the cheapest of few phases
 	best, bestc := math.Inf(1), math.Inf(1)
 	for c := dmax; c >= 1 && (c == dmax || inRate/float64(c) <= 2*minWork); c-- {
@@ -121,7 +120,7 @@ func planChannel(inRate, audioRate, minWork, protect, trans, attenDB float64) (C
 			continue
 		}
 		fw := q.WorkRate
-		cost := q.Cost + 2*float64(KaiserOrder(fw-2*protect, fw, attenDB)+1)*audioRate/inRate
+		cost := q.Cost + 2*resamplerTaps(fw, protect, attenDB)*audioRate/inRate
 		if trans > 0 {
 			cost += 2 * float64(KaiserOrder(trans, fw, attenDB)+1) * fw / inRate
 		}
@@ -142,6 +141,15 @@ func planChannel(inRate, audioRate, minWork, protect, trans, attenDB float64) (C
 		return pc, nil
 	}
 	return p, nil
+}
+
+// resamplerTaps estimates the taps a polyphase resampler from the work
+// rate fw to the audio rate takes an output sample: its prototype's
+// transition is fw − 2·protect at fw·L, so about KaiserOrder(fw −
+// 2·protect, fw) taps a phase whatever L (complex data: two
+// multiplications a tap).
+func resamplerTaps(fw, protect, attenDB float64) float64 {
+	return float64(KaiserOrder(fw-2*protect, fw, attenDB) + 1)
 }
 
 // cheapPhases is the most phases of the rational resampler to the audio

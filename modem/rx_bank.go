@@ -180,10 +180,7 @@ func chainOps(r, fa, protect, trans, attenDB float64, phases int) (ops float64, 
 		if l, _, err := rateRatio(fw, fa); err != nil || l > phases {
 			return 0, false
 		}
-		// a polyphase resampler from fw: about KaiserOrder(fw − 2·protect,
-		// fw) taps an audio sample, complex data
-		rs := float64(KaiserOrder(fw-2*protect, fw, attenDB) + 1)
-		return 2*cp.Cost*r + 2*filt*fw + 2*rs*fa, true
+		return 2*cp.Cost*r + 2*filt*fw + 2*resamplerTaps(fw, protect, attenDB)*fa, true
 	}
 	interp := float64(KaiserOrder(fw-2*protect, fa, attenDB)+1) / math.Round(up)
 	return 2*cp.Cost*r + 2*filt*fw + 4*interp*fa, true
